@@ -1,0 +1,65 @@
+import { fileURLToPath } from 'node:url';
+import react from '@vitejs/plugin-react';
+import tailwindcss from '@tailwindcss/vite';
+import { defineConfig } from 'vitest/config';
+
+const here = (p: string) => fileURLToPath(new URL(p, import.meta.url));
+const apiTarget = `http://127.0.0.1:${process.env.PORT ?? '3000'}`;
+
+export default defineConfig({
+  root: here('./client'),
+  plugins: [react(), tailwindcss()],
+  resolve: {
+    alias: {
+      '@shared': here('./shared/src'),
+      '@': here('./client/src'),
+    },
+  },
+  build: {
+    outDir: here('./dist/client'),
+    emptyOutDir: true,
+    sourcemap: true,
+  },
+  server: {
+    port: Number(process.env.VITE_PORT ?? 5173),
+    proxy: {
+      '/api': apiTarget,
+      '/socket.io': { target: apiTarget, ws: true },
+    },
+  },
+  test: {
+    projects: [
+      {
+        extends: true,
+        test: {
+          name: 'unit',
+          root: here('.'),
+          environment: 'node',
+          include: ['tests/unit/**/*.test.ts', 'tests/model/**/*.test.ts'],
+        },
+      },
+      {
+        extends: true,
+        test: {
+          name: 'client',
+          root: here('.'),
+          environment: 'jsdom',
+          include: ['tests/client/**/*.test.tsx'],
+          setupFiles: ['tests/client/setup.ts'],
+        },
+      },
+      {
+        extends: true,
+        test: {
+          name: 'integration',
+          root: here('.'),
+          environment: 'node',
+          include: ['tests/integration/**/*.test.ts'],
+          fileParallelism: false,
+          testTimeout: 30_000,
+          hookTimeout: 60_000,
+        },
+      },
+    ],
+  },
+});
