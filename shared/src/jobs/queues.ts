@@ -1,0 +1,29 @@
+import { z } from 'zod';
+
+/** BullMQ queue names. One file per queue under workers/src. */
+export const QUEUES = {
+  mail: 'mail',
+  maintenance: 'maintenance',
+} as const;
+export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
+
+/**
+ * An e-mail to send. Job payloads never carry card numbers: at most a case id
+ * the worker can look things up by.
+ */
+export const mailJobSchema = z.object({
+  to: z.array(z.string().email()).min(1).max(20),
+  subject: z.string().min(1).max(200),
+  text: z.string().min(1).max(50_000),
+  html: z.string().max(200_000).optional(),
+  /** What the mail is for, e.g. `invite`, `cardholder-contact`, `reassignment`, `drift-alert`. */
+  purpose: z.string().min(1).max(40),
+  /** Optional record the mail belongs to, for the audit trail. */
+  related: z.object({ type: z.string().max(32), id: z.string().max(64) }).optional(),
+});
+export type MailJob = z.infer<typeof mailJobSchema>;
+
+export const maintenanceJobSchema = z.object({
+  task: z.enum(['purge-expired-sessions']),
+});
+export type MaintenanceJob = z.infer<typeof maintenanceJobSchema>;

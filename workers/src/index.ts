@@ -1,0 +1,58 @@
+import type { Worker, Queue } from 'bullmq';
+import { loadConfig } from '../../server/src/config/index';
+import { openDatabase } from '../../server/src/db/database';
+import { logger } from '../../server/src/lib/logger';
+import { createMailWorker } from './mail.worker';
+import { createMaintenanceWorker } from './maintenance.worker';
+
+process.env.EDGECASE_PROCESS ??= 'workers';
+
+/**
+ * Entry point of the worker process. `--only mail,maintenance` runs a subset
+ * (so scoring and training can run in processes of their own).
+ */
+async function main() {
+  const c = loadConfig();
+  const onlyArg = process.argv.find((a) => a.startsWith('--only='))?.slice('--only='.length);
+  const only = onlyArg ? new Set(onlyArg.split(',')) : null;
+  const wants = (name: string) => only === null || only.has(name);
+  const db = openDatabase(c);
+  await db.ping();
+
+  const workers: Worker[] = [];
+  const queues: Queue[] = [];
+  if (wants('mail')) workers.push(createMailWorker(c) as unknown as Worker);
+  if (wants('maintenance')) {
+    const m = await createMaintenanceWorker(c, db);
+    workers.push(m.worker as unknown as Worker);
+    queues.push(m.queue as unknown as Queue);
+  }
+  for (const w of workers) {
+    w.on('failed', (job, err) => logger().warn({ queue: w.name, jobId: job?.id, err: err.message }, 'job failed'));
+    w.on('error', (err) => logger().error({ queue: w.name, err: err.message }, 'worker error'));
+  }
+  logger().info({ workers: workers.map((w) => w.name) }, 'workers running');
+
+  let closing: Promise<void> | undefined;
+  const close = (signal: string) => {
+    closing ??= (async () => {
+      logger().info({ signal }, 'workers stopping');
+      const force = setTimeout(() => process.exit(1), 15_000);
+      force.unref();
+      await Promise.allSettled(workers.map((w) => w.close()));
+      await Promise.allSettled(queues.map((q) => q.close()));
+      await db.close().catch(() => undefined);
+      process.exit(0);
+    })();
+    return closing;
+  };
+  process.on('SIGTERM', () => void close('SIGTERM'));
+  process.on('SIGINT', () => void close('SIGINT'));
+}
+
+process.on('unhandledRejection', (reason) => logger().error({ err: reason }, 'unhandled promise rejection'));
+
+main().catch((err) => {
+  logger().fatal({ err }, 'workers failed to start');
+  process.exit(1);
+});
