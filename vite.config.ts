@@ -55,6 +55,8 @@ export default defineConfig({
           root: here('.'),
           environment: 'node',
           include: ['tests/integration/**/*.test.ts'],
+          globalSetup: ['tests/integration/global-setup.ts'],
+          env: { EDGECASE_MODE: 'test' },
           fileParallelism: false,
           testTimeout: 30_000,
           hookTimeout: 60_000,

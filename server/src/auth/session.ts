@@ -22,8 +22,27 @@ export interface SessionSetup {
  */
 export function createSession(c: Config, db: Database): SessionSetup {
   const SequelizeStore = connectSessionSequelize(session.Store);
+  /**
+   * The library only sweeps expired rows every few minutes and returns them
+   * until then; an idle timeout has to hold on every request, so `get` checks
+   * the row's expiry itself.
+   */
+  class ExpiringStore extends SequelizeStore {
+    override get(sid: string, fn: (err: unknown, sess?: session.SessionData | null) => void) {
+      db.models.Session.findByPk(sid)
+        .then(async (row) => {
+          if (!row || !row.data) return fn(null, null);
+          if (row.expires && row.expires.getTime() <= Date.now()) {
+            await row.destroy();
+            return fn(null, null);
+          }
+          fn(null, JSON.parse(row.data) as session.SessionData);
+        })
+        .catch((err) => fn(err));
+    }
+  }
   const idleMs = c.SESSION_IDLE_MINUTES * 60_000;
-  const store = new SequelizeStore({
+  const store = new ExpiringStore({
     db: db.sequelize,
     table: 'Session',
     expiration: idleMs,

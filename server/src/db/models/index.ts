@@ -1,4 +1,4 @@
-import { DataTypes, Model, type Sequelize, type InferAttributes, type InferCreationAttributes, type CreationOptional } from 'sequelize';
+import { DataTypes, Model, type ModelStatic, type Sequelize, type InferAttributes, type InferCreationAttributes, type CreationOptional } from 'sequelize';
 import type { Role } from '@shared/auth/roles';
 
 export class UserModel extends Model<InferAttributes<UserModel>, InferCreationAttributes<UserModel>> {
@@ -42,14 +42,19 @@ export class AuditLogModel extends Model<InferAttributes<AuditLogModel>, InferCr
 }
 
 export interface Models {
-  User: typeof UserModel;
-  Session: typeof SessionModel;
-  AuditLog: typeof AuditLogModel;
+  User: ModelStatic<UserModel>;
+  Session: ModelStatic<SessionModel>;
+  AuditLog: ModelStatic<AuditLogModel>;
 }
 
-/** Registers every model once, at start-up, on the given Sequelize instance. */
+/**
+ * Registers every model once, at start-up, on the given Sequelize instance.
+ * `define` (not `Model.init`) keeps models bound to their own instance, so two
+ * servers in one process (tests, tools) never share a closed connection pool.
+ * The classes above serve as the row types.
+ */
 export function registerModels(sequelize: Sequelize): Models {
-  UserModel.init(
+  const User = sequelize.define<UserModel>('User',
     {
       id: { type: DataTypes.INTEGER.UNSIGNED, autoIncrement: true, primaryKey: true },
       email: { type: DataTypes.STRING(254), allowNull: false, unique: true },
@@ -63,9 +68,9 @@ export function registerModels(sequelize: Sequelize): Models {
       createdAt: DataTypes.DATE(3),
       updatedAt: DataTypes.DATE(3),
     },
-    { sequelize, tableName: 'users', modelName: 'User' },
+    { tableName: 'users' },
   );
-  SessionModel.init(
+  const Session = sequelize.define<SessionModel>('Session',
     {
       sid: { type: DataTypes.STRING(64), primaryKey: true },
       expires: { type: DataTypes.DATE(3), allowNull: true },
@@ -74,9 +79,9 @@ export function registerModels(sequelize: Sequelize): Models {
       createdAt: DataTypes.DATE(3),
       updatedAt: DataTypes.DATE(3),
     },
-    { sequelize, tableName: 'sessions', modelName: 'Session' },
+    { tableName: 'sessions' },
   );
-  AuditLogModel.init(
+  const AuditLog = sequelize.define<AuditLogModel>('AuditLog',
     {
       id: { type: DataTypes.BIGINT.UNSIGNED, autoIncrement: true, primaryKey: true },
       occurredAt: { type: DataTypes.DATE(3), allowNull: false },
@@ -93,7 +98,7 @@ export function registerModels(sequelize: Sequelize): Models {
       prevHash: { type: DataTypes.CHAR(64), allowNull: false },
       hash: { type: DataTypes.CHAR(64), allowNull: false },
     },
-    { sequelize, tableName: 'audit_log', modelName: 'AuditLog', timestamps: false },
+    { tableName: 'audit_log', timestamps: false },
   );
-  return { User: UserModel, Session: SessionModel, AuditLog: AuditLogModel };
+  return { User, Session, AuditLog };
 }

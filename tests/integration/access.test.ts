@@ -1,0 +1,71 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import request from 'supertest';
+import { ROLES, type Role } from '../../shared/src/auth/roles';
+import { csrfToken, signedInAgent, startTestServer, type TestServer, type Agent } from './helpers/test-server';
+
+/**
+ * Who may call what, written out by hand. The test fails when a mounted route
+ * is missing here (so a new route cannot skip this table) and when the server
+ * lets a role in that the table keeps out, or the other way round.
+ * `anyone` = no session needed; `signed-in` = every staff role.
+ */
+const EXPECTED: Record<string, 'anyone' | 'signed-in' | Role[]> = {
+  'GET /health': 'anyone',
+  'GET /auth/csrf': 'anyone',
+  'POST /auth/login': 'anyone',
+  'GET /auth/me': 'signed-in',
+  'POST /auth/logout': 'signed-in',
+  'GET /demo/info': 'anyone',
+  'GET /demo/mail': 'signed-in',
+  'GET /demo/mail/:id': 'signed-in',
+};
+
+let ts: TestServer;
+const agents = new Map<Role, { agent: Agent; csrf: string }>();
+
+beforeAll(async () => {
+  ts = await startTestServer();
+  for (const role of ROLES) agents.set(role, await signedInAgent(ts, role));
+});
+afterAll(async () => {
+  await ts?.close();
+});
+
+const concretePath = (p: string) => `/api${p.replace(/:(\w+)/g, 'probe-$1')}`;
+
+function allowed(rule: (typeof EXPECTED)[string], role: Role | null): boolean {
+  if (rule === 'anyone') return true;
+  if (role === null) return false;
+  return rule === 'signed-in' || rule.includes(role);
+}
+
+describe('route access table', () => {
+  it('lists every mounted route', () => {
+    const mounted = ts.server.routes.map((r) => `${r.method.toUpperCase()} ${r.path}`).sort();
+    expect(mounted).toEqual(Object.keys(EXPECTED).sort());
+  });
+
+  const cases: { key: string; role: Role | null }[] = [];
+  for (const key of Object.keys(EXPECTED)) {
+    for (const role of [...ROLES, null]) cases.push({ key, role });
+  }
+
+  it.each(cases)('$key as $role', async ({ key, role }) => {
+    const [method, path] = key.split(' ') as [string, string];
+    // Sign-out would end the shared session: give it a session of its own.
+    const own = role && key === 'POST /auth/logout' ? await signedInAgent(ts, role) : null;
+    const session = own ?? (role ? agents.get(role)! : null);
+    const agent = session?.agent ?? request.agent(ts.server.http);
+    const token = session?.csrf ?? (await csrfToken(agent));
+    const url = concretePath(path);
+    const req = method === 'GET' ? agent.get(url) : agent.post(url).set('X-CSRF-Token', token).send({});
+    const res = await req;
+    if (allowed(EXPECTED[key], role)) {
+      expect([401, 403], `${key} as ${role ?? 'nobody'} answered ${res.status}`).not.toContain(res.status);
+      expect(res.status).toBeLessThan(500);
+    } else {
+      expect(res.status).toBe(role === null ? 401 : 403);
+      expect(res.body.error.code).toBe(role === null ? 'unauthenticated' : 'forbidden');
+    }
+  });
+});
