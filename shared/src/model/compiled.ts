@@ -1,0 +1,215 @@
+/**
+ * Compiled scorer for the hot path. F is additive over features,
+ * F(x) = sum_f g_f(x_f), and each g_f is a step function that changes only at
+ * the thresholds the model's stumps on f use. Folding the stumps gives one
+ * step table per feature (flat typed arrays), so a row costs one short binary
+ * search per used numeric feature and one lookup per categorical feature,
+ * instead of one comparison per round. Equal to the plain scorer up to float
+ * rounding of the re-ordered sums (tests check 1e-12).
+ */
+import { categoryIndex } from './binning';
+import { ScoringInputError } from './errors';
+import type { Model } from './model-schema';
+import { batchLength, categoricalValue, numericValue, probabilityFromMargin, totalAlpha } from './score';
+import type { FeatureColumns, Row } from './types';
+
+/** g_f for a numeric feature: values[j] on interval j = #{cuts < x}; `missing` when x is missing. */
+export interface NumericStepTable {
+  kind: 'numeric';
+  feature: string;
+  featureIndex: number;
+  /** Used thresholds, strictly increasing (raw units). */
+  cuts: Float64Array;
+  /** values.length = cuts.length + 1. */
+  values: Float64Array;
+  missing: number;
+}
+
+/** g_f for a categorical feature: values by code (kept categories, then "other", then missing). */
+export interface CategoricalStepTable {
+  kind: 'categorical';
+  feature: string;
+  featureIndex: number;
+  categories: string[];
+  /** values.length = categories.length + 2. */
+  values: Float64Array;
+}
+
+export type StepTable = NumericStepTable | CategoricalStepTable;
+
+/** One step table per feature that at least one stump uses, in model feature order. */
+export function buildStepTables(model: Model): StepTable[] {
+  const tables: StepTable[] = [];
+  model.features.forEach((feat, f) => {
+    const stumps = model.stumps.filter((s) => s.featureIndex === f);
+    if (stumps.length === 0) return;
+    const bins = model.binning.features[f];
+    if (bins.kind === 'numeric') {
+      const used = [...new Set(stumps.flatMap((s) => (s.kind === 'numeric' && s.threshold !== null ? [s.threshold] : [])))].sort(
+        (a, b) => a - b,
+      );
+      const cuts = Float64Array.from(used);
+      const values = new Float64Array(cuts.length + 1);
+      let missing = 0;
+      for (const s of stumps) {
+        if (s.kind !== 'numeric') continue;
+        const a = s.alpha * s.polarity;
+        missing += s.missingRight ? a : -a;
+        if (s.threshold === null) {
+          for (let j = 0; j < values.length; j++) values[j] -= a;
+        } else {
+          const k = used.indexOf(s.threshold);
+          for (let j = 0; j < values.length; j++) values[j] += j > k ? a : -a;
+        }
+      }
+      tables.push({ kind: 'numeric', feature: feat.name, featureIndex: f, cuts, values, missing });
+    } else {
+      const values = new Float64Array(bins.categories.length + 2);
+      for (const s of stumps) {
+        if (s.kind !== 'categorical') continue;
+        const a = s.alpha * s.polarity;
+        for (let c = 0; c < values.length; c++) values[c] += c === s.code ? a : -a;
+      }
+      tables.push({ kind: 'categorical', feature: feat.name, featureIndex: f, categories: bins.categories, values });
+    }
+  });
+  return tables;
+}
+
+/** Interval index #{cuts < v} for a present value. */
+export function stepIndex(cuts: Float64Array, v: number): number {
+  let lo = 0;
+  let hi = cuts.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (cuts[mid] < v) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
+
+export interface CompiledScorer {
+  /** The step tables, for plotting or inspection. */
+  readonly tables: StepTable[];
+  /** sum_t |alpha_t|. */
+  readonly totalAlpha: number;
+  /** F(x) for one row. */
+  score(row: Row): number;
+  /** F for a column batch (Float64Array / (string | null)[] by name; absent feature = missing). */
+  scoreColumns(columns: FeatureColumns): Float64Array;
+  /** Calibrated probability for a margin. */
+  probability(F: number): number;
+}
+
+/**
+ * Folds the model into step tables. Numeric tables are padded to 2^m - 1 cuts
+ * with +Infinity so the batch search runs a fixed number of steps.
+ */
+export function compileModel(model: Model): CompiledScorer {
+  const tables = buildStepTables(model);
+  const numeric = tables.filter((t): t is NumericStepTable => t.kind === 'numeric');
+  const categorical = tables.filter((t): t is CategoricalStepTable => t.kind === 'categorical');
+  // Flat layout: padded cut tables back to back, value tables back to back.
+  const padLen = numeric.map((t) => {
+    let p = 1;
+    while (p < t.cuts.length + 1) p <<= 1;
+    return p; // p - 1 cut slots, p value slots
+  });
+  const cutOff = new Int32Array(numeric.length + 1);
+  numeric.forEach((_, i) => (cutOff[i + 1] = cutOff[i] + padLen[i]));
+  const flatCuts = new Float64Array(cutOff[numeric.length]).fill(Infinity);
+  const flatValues = new Float64Array(cutOff[numeric.length]);
+  const missingValues = new Float64Array(numeric.length);
+  numeric.forEach((t, i) => {
+    flatCuts.set(t.cuts, cutOff[i]);
+    flatValues.set(t.values, cutOff[i]);
+    // Padded value slots are never reached (their cut is +Inf), fill for safety.
+    for (let j = t.values.length; j < padLen[i]; j++) flatValues[cutOff[i] + j] = t.values[t.values.length - 1];
+    missingValues[i] = t.missing;
+  });
+  const catMaps = categorical.map((t) => categoryIndex({ name: t.feature, kind: 'categorical', categories: t.categories, pooledCategories: 0 }));
+  const sumAlpha = totalAlpha(model);
+
+  const searchPadded = (i: number, v: number): number => {
+    const base = cutOff[i];
+    let step = padLen[i] >> 1;
+    let p = 0;
+    while (step > 0) {
+      if (flatCuts[base + p + step - 1] < v) p += step;
+      step >>= 1;
+    }
+    return p;
+  };
+
+  return {
+    tables,
+    totalAlpha: sumAlpha,
+    probability: (F: number) => probabilityFromMargin(model, F),
+    score(row: Row): number {
+      let F = 0;
+      for (let i = 0; i < numeric.length; i++) {
+        const v = numericValue(row, numeric[i].feature);
+        F += v !== v ? missingValues[i] : flatValues[cutOff[i] + searchPadded(i, v)];
+      }
+      for (let i = 0; i < categorical.length; i++) {
+        const t = categorical[i];
+        const v = categoricalValue(row, t.feature);
+        const C = t.categories.length;
+        F += t.values[v === null ? C + 1 : (catMaps[i].get(v) ?? C)];
+      }
+      return F;
+    },
+    scoreColumns(columns: FeatureColumns): Float64Array {
+      const n = batchLength(model, columns);
+      const out = new Float64Array(n);
+      for (let i = 0; i < numeric.length; i++) {
+        const t = numeric[i];
+        const col = columns[t.feature];
+        if (col === undefined) {
+          for (let r = 0; r < n; r++) out[r] += missingValues[i];
+          continue;
+        }
+        if (!(col instanceof Float64Array)) throw new ScoringInputError(`Feature "${t.feature}" is numeric: its column must be a Float64Array`);
+        const base = cutOff[i];
+        const miss = missingValues[i];
+        const P = padLen[i];
+        // Fixed-step search specialised on the table size.
+        if (P === 1) {
+          const v0 = flatValues[base];
+          for (let r = 0; r < n; r++) {
+            const v = col[r];
+            out[r] += v !== v ? miss : v0;
+          }
+        } else {
+          for (let r = 0; r < n; r++) {
+            const v = col[r];
+            if (v !== v) {
+              out[r] += miss;
+              continue;
+            }
+            let p = 0;
+            for (let step = P >> 1; step > 0; step >>= 1) if (flatCuts[base + p + step - 1] < v) p += step;
+            out[r] += flatValues[base + p];
+          }
+        }
+      }
+      for (let i = 0; i < categorical.length; i++) {
+        const t = categorical[i];
+        const col = columns[t.feature];
+        const C = t.categories.length;
+        if (col === undefined) {
+          for (let r = 0; r < n; r++) out[r] += t.values[C + 1];
+          continue;
+        }
+        if (col instanceof Float64Array) throw new ScoringInputError(`Feature "${t.feature}" is categorical: its column must hold strings or null`);
+        const map = catMaps[i];
+        const vals = t.values;
+        for (let r = 0; r < n; r++) {
+          const v = col[r];
+          out[r] += vals[v === null || v === undefined || v === '' ? C + 1 : (map.get(v) ?? C)];
+        }
+      }
+      return out;
+    },
+  };
+}
