@@ -3,6 +3,7 @@ import js from '@eslint/js';
 import tseslint from 'typescript-eslint';
 import reactHooks from 'eslint-plugin-react-hooks';
 import globals from 'globals';
+import type { Linter } from 'eslint';
 
 const featuresDir = new URL('./client/src/features/', import.meta.url);
 const features = existsSync(featuresDir)
@@ -46,7 +47,7 @@ export default tseslint.config(
     },
   },
   // A feature owns its folder; features do not import each other.
-  ...features.map((f) => ({
+  ...features.map((f): Linter.Config => ({
     files: [`client/src/features/${f}/**/*.{ts,tsx}`],
     rules: {
       'no-restricted-imports': [

@@ -4,6 +4,7 @@ import { z } from 'zod';
 export const QUEUES = {
   mail: 'mail',
   maintenance: 'maintenance',
+  scoring: 'scoring',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -24,6 +25,14 @@ export const mailJobSchema = z.object({
 export type MailJob = z.infer<typeof mailJobSchema>;
 
 export const maintenanceJobSchema = z.object({
-  task: z.enum(['purge-expired-sessions']),
+  task: z.enum(['purge-expired-sessions', 'requeue-unscored']),
 });
 export type MaintenanceJob = z.infer<typeof maintenanceJobSchema>;
+
+/** Transactions to score, by their internal ids (never card data). */
+export const scoringJobSchema = z.object({
+  transactionIds: z.array(z.number().int().positive()).min(1).max(1000),
+  /** The ingest batch that accepted them (also the job id, so a batch is queued once). */
+  batch: z.string().min(1).max(64),
+});
+export type ScoringJob = z.infer<typeof scoringJobSchema>;

@@ -1,0 +1,44 @@
+import type { Redis } from 'ioredis';
+
+/**
+ * Domain events travel from workers to every web server over Redis pub/sub;
+ * each server pushes them to its own sockets. Pub/sub is fire-and-forget: a
+ * console that missed events (disconnect, server restart) resyncs through the
+ * API, which is the source of truth.
+ */
+export type DomainEvent =
+  | {
+      type: 'case.alerted';
+      caseId: number;
+      created: boolean;
+      transactionId: number;
+      probability: number;
+      status: string;
+      assigneeId: number | null;
+      at: string;
+    }
+  | { type: 'case.changed'; caseId: number; status: string; assigneeId: number | null; previousAssigneeId?: number | null; at: string }
+  | { type: 'transaction.scored'; transactionId: number; externalId: string; probability: number; alerted: boolean; at: string }
+  | { type: 'model.changed'; at: string }
+  | { type: 'settings.changed'; at: string };
+
+export const eventsChannel = (prefix: string) => `${prefix}:events`;
+
+export async function publishEvents(redis: Redis, prefix: string, events: DomainEvent[]): Promise<void> {
+  if (events.length === 0) return;
+  const pipeline = redis.pipeline();
+  for (const e of events) pipeline.publish(eventsChannel(prefix), JSON.stringify(e));
+  await pipeline.exec();
+}
+
+export function subscribeEvents(subscriber: Redis, prefix: string, onEvent: (e: DomainEvent) => void): Promise<void> {
+  subscriber.on('message', (channel: string, message: string) => {
+    if (channel !== eventsChannel(prefix)) return;
+    try {
+      onEvent(JSON.parse(message) as DomainEvent);
+    } catch {
+      // A malformed event is dropped; consoles resync through the API.
+    }
+  });
+  return subscriber.subscribe(eventsChannel(prefix)).then(() => undefined);
+}

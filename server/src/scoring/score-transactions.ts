@@ -1,0 +1,277 @@
+import { QueryTypes, type Transaction } from 'sequelize';
+import type { Redis } from 'ioredis';
+import type { Database } from '../db/database';
+import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
+import { explainRow, type Row } from '@shared/model/index';
+import { isHighRiskMcc } from '@shared/reference/mcc';
+import type { LoadedModel } from '../model-registry/model-repository';
+import { priorityFor, type AlertingSettings } from '../settings/settings-repository';
+import { publishEvents, type DomainEvent } from '../events/event-bus';
+import type { VelocityStore } from './velocity';
+
+/** Reason codes kept with every score: the largest contributions, in raw units. */
+const REASONS_KEPT = 6;
+
+export interface ScoringContext {
+  db: Database;
+  redis: Redis;
+  redisPrefix: string;
+  velocity: VelocityStore;
+  champion: LoadedModel;
+  challenger: LoadedModel | null;
+  settings: AlertingSettings;
+}
+
+interface PendingRow {
+  id: number;
+  external_id: string;
+  card_id: number;
+  pan_hash: string;
+  occurred_at: Date;
+  received_at: Date;
+  amount_minor: number;
+  currency: string;
+  currency_exponent: number;
+  merchant_ref: string;
+  mcc: string;
+  merchant_country: string;
+  card_present: number;
+  channel: string;
+  device_id: string | null;
+  lat: number | null;
+  lon: number | null;
+}
+
+export interface Reason {
+  feature: string;
+  value: number | string | null;
+  contribution: number;
+  text: string;
+}
+
+export interface ScoreOutcome {
+  transactionId: number;
+  externalId: string;
+  margin: number;
+  normalizedMargin: number;
+  probability: number;
+  reasons: Reason[];
+  features: Row;
+  alerted: boolean;
+}
+
+/** Scores one feature row with a loaded model: margin, normalised margin, probability, top reasons. */
+export function scoreRowWith(m: LoadedModel, row: Row) {
+  const margin = m.compiled.score(row);
+  const normalizedMargin = m.compiled.totalAlpha > 0 ? margin / m.compiled.totalAlpha : 0;
+  const probability = m.compiled.probability(margin);
+  const reasons = explainRow(m.model, row)
+    .contributions.slice(0, REASONS_KEPT)
+    .map((c) => ({ feature: c.feature, value: c.value, contribution: c.contribution, text: c.text }));
+  return { margin, normalizedMargin, probability, reasons };
+}
+
+const SELECT_PENDING = `
+  SELECT t.id, t.external_id, t.card_id, c.pan_hash, t.occurred_at, t.received_at, t.amount_minor, t.currency,
+         t.currency_exponent, t.merchant_ref, t.mcc, t.merchant_country, t.card_present, t.channel, t.device_id, t.lat, t.lon
+  FROM transactions t JOIN cards c ON c.id = t.card_id
+  WHERE t.id IN (:ids) AND t.status = 'accepted'`;
+
+/**
+ * Scores accepted transactions exactly once. Within one database transaction
+ * the rows are locked (FOR UPDATE), so a second worker handed the same ids
+ * waits and then finds them scored; features, scores, alerts and case updates
+ * commit together or not at all. Velocity state is idempotent per transaction
+ * id, so a retry after a crash sees the same features it saw the first time.
+ */
+export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Promise<ScoreOutcome[]> {
+  if (ids.length === 0) return [];
+  const { db } = ctx;
+  const candidates = await db.sequelize.query<PendingRow>(SELECT_PENDING, { replacements: { ids }, type: QueryTypes.SELECT });
+  if (candidates.length === 0) return [];
+  candidates.sort((a, b) => new Date(a.occurred_at).getTime() - new Date(b.occurred_at).getTime() || a.id - b.id);
+
+  const snapshots = await ctx.velocity.observeMany(
+    candidates.map((r) => ({
+      cardKey: r.pan_hash,
+      event: {
+        transactionId: r.external_id,
+        occurredAt: new Date(r.occurred_at),
+        amount: r.amount_minor / 10 ** r.currency_exponent,
+        merchantRef: r.merchant_ref,
+        merchantCountry: r.merchant_country,
+        lat: r.lat,
+        lon: r.lon,
+        deviceId: r.device_id,
+      },
+    })),
+  );
+
+  const outcomes = candidates.map((r, i) => score(ctx, r, snapshots[i]));
+  const events: DomainEvent[] = [];
+
+  await db.sequelize.transaction(async (t) => {
+    const locked = await db.sequelize.query<{ id: number }>(
+      "SELECT id FROM transactions WHERE id IN (:ids) AND status = 'accepted' FOR UPDATE",
+      { replacements: { ids: candidates.map((r) => r.id) }, type: QueryTypes.SELECT, transaction: t },
+    );
+    const stillPending = new Set(locked.map((r) => Number(r.id)));
+    const todo = outcomes.map((o, i) => ({ o, r: candidates[i] })).filter(({ o }) => stillPending.has(o.transactionId));
+    if (todo.length === 0) return;
+    const now = new Date();
+    await bulkInsert(
+      db,
+      t,
+      'INSERT IGNORE INTO transaction_features (transaction_id, features, computed_at) VALUES',
+      todo.map(({ o }) => [o.transactionId, JSON.stringify(o.features), now]),
+    );
+    await bulkInsert(
+      db,
+      t,
+      'INSERT IGNORE INTO transaction_scores (transaction_id, model_version_id, margin, normalized_margin, probability, reasons, alerted, threshold, scored_at, latency_ms) VALUES',
+      todo.map(({ o, r }) => [
+        o.transactionId,
+        ctx.champion.id,
+        o.margin,
+        o.normalizedMargin,
+        o.probability,
+        JSON.stringify(o.reasons),
+        o.alerted,
+        ctx.settings.threshold,
+        now,
+        Math.max(0, now.getTime() - new Date(r.received_at).getTime()),
+      ]),
+    );
+    if (ctx.challenger) {
+      const ch = ctx.challenger;
+      await bulkInsert(
+        db,
+        t,
+        'INSERT IGNORE INTO shadow_scores (transaction_id, model_version_id, margin, probability, would_alert, scored_at) VALUES',
+        todo.map(({ o }) => {
+          const margin = ch.compiled.score(o.features);
+          const p = ch.compiled.probability(margin);
+          return [o.transactionId, ch.id, margin, p, p >= ctx.settings.threshold, now];
+        }),
+      );
+    }
+    await db.sequelize.query("UPDATE transactions SET status = 'scored' WHERE id IN (:ids)", {
+      replacements: { ids: todo.map(({ o }) => o.transactionId) },
+      type: QueryTypes.UPDATE,
+      transaction: t,
+    });
+    for (const { o, r } of todo) {
+      if (!o.alerted) continue;
+      events.push(await raiseAlert(ctx, t, o, r));
+    }
+  });
+
+  for (const o of outcomes) {
+    events.push({ type: 'transaction.scored', transactionId: o.transactionId, externalId: o.externalId, probability: o.probability, alerted: o.alerted, at: new Date().toISOString() });
+  }
+  await publishEvents(ctx.redis, ctx.redisPrefix, events).catch(() => undefined);
+  return outcomes;
+}
+
+function score(ctx: ScoringContext, r: PendingRow, v: VelocitySnapshot): ScoreOutcome {
+  const amount = r.amount_minor / 10 ** r.currency_exponent;
+  const features = featureRow(
+    {
+      amount,
+      mcc: r.mcc,
+      mccHighRisk: isHighRiskMcc(r.mcc),
+      merchantCountry: r.merchant_country,
+      cardPresent: Boolean(r.card_present),
+      channel: r.channel,
+      occurredAt: new Date(r.occurred_at),
+    },
+    v,
+  );
+  const s = scoreRowWith(ctx.champion, features);
+  return {
+    transactionId: Number(r.id),
+    externalId: r.external_id,
+    ...s,
+    features,
+    alerted: s.probability >= ctx.settings.threshold,
+  };
+}
+
+/**
+ * Opens a case for the card or joins its open one. The unique `open_card_id`
+ * makes "one open case per card" hold under concurrency: the insert either
+ * creates the case or updates the open one, and LAST_INSERT_ID(id) returns its
+ * id either way.
+ */
+async function raiseAlert(ctx: ScoringContext, t: Transaction, o: ScoreOutcome, r: PendingRow): Promise<DomainEvent> {
+  const { db, settings } = ctx;
+  const priority = priorityFor(o.probability, settings);
+  const occurred = new Date(r.occurred_at);
+  const due = new Date(Date.now() + settings.slaMinutes[priority] * 60_000);
+  const [insertId, affected] = (await db.sequelize.query(
+    `INSERT INTO cases (card_id, open_card_id, status, priority, highest_probability, highest_margin, amount_at_risk_minor, currency,
+        currency_exponent, alert_count, first_alert_at, last_alert_at, sla_due_at, mcc, merchant_country, channel, created_at, updated_at)
+     VALUES (:card, :card, 'new', :priority, :p, :margin, :amount, :currency, :exp, 1, :occurred, :occurred, :due, :mcc, :country, :channel, UTC_TIMESTAMP(3), UTC_TIMESTAMP(3))
+     ON DUPLICATE KEY UPDATE
+        id = LAST_INSERT_ID(id),
+        alert_count = alert_count + 1,
+        priority = IF(VALUES(priority) + 0 > priority + 0, VALUES(priority), priority),
+        sla_due_at = LEAST(sla_due_at, VALUES(sla_due_at)),
+        highest_probability = GREATEST(highest_probability, VALUES(highest_probability)),
+        highest_margin = GREATEST(highest_margin, VALUES(highest_margin)),
+        amount_at_risk_minor = amount_at_risk_minor + IF(currency = VALUES(currency), VALUES(amount_at_risk_minor), 0),
+        last_alert_at = GREATEST(last_alert_at, VALUES(last_alert_at)),
+        first_alert_at = LEAST(first_alert_at, VALUES(first_alert_at)),
+        version = version + 1,
+        updated_at = UTC_TIMESTAMP(3)`,
+    {
+      replacements: {
+        card: r.card_id,
+        priority,
+        p: o.probability,
+        margin: o.normalizedMargin,
+        amount: r.amount_minor,
+        currency: r.currency,
+        exp: r.currency_exponent,
+        occurred,
+        due,
+        mcc: r.mcc,
+        country: r.merchant_country,
+        channel: r.channel,
+      },
+      type: QueryTypes.INSERT,
+      transaction: t,
+    },
+  )) as unknown as [number, number];
+  const caseId = Number(insertId);
+  await db.sequelize.query('INSERT IGNORE INTO alerts (transaction_id, case_id, probability, created_at) VALUES (?, ?, ?, UTC_TIMESTAMP(3))', {
+    replacements: [o.transactionId, caseId, o.probability],
+    type: QueryTypes.INSERT,
+    transaction: t,
+  });
+  const [c] = await db.sequelize.query<{ status: string; assignee_id: number | null }>('SELECT status, assignee_id FROM cases WHERE id = ?', {
+    replacements: [caseId],
+    type: QueryTypes.SELECT,
+    transaction: t,
+  });
+  return {
+    type: 'case.alerted',
+    caseId,
+    // MariaDB reports 1 affected row for an insert and 2 for the update branch of ON DUPLICATE KEY.
+    created: affected === 1,
+    transactionId: o.transactionId,
+    probability: o.probability,
+    status: c?.status ?? 'new',
+    assigneeId: c?.assignee_id ?? null,
+    at: new Date().toISOString(),
+  };
+}
+
+/** Multi-row INSERT in chunks (one round trip per 500 rows). */
+async function bulkInsert(db: Database, t: Transaction, head: string, rows: unknown[][]): Promise<void> {
+  for (let i = 0; i < rows.length; i += 500) {
+    const chunk = rows.slice(i, i + 500);
+    const placeholders = chunk.map((r) => `(${r.map(() => '?').join(', ')})`).join(', ');
+    await db.sequelize.query(`${head} ${placeholders}`, { replacements: chunk.flat(), type: QueryTypes.INSERT, transaction: t });
+  }
+}
