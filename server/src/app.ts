@@ -20,6 +20,15 @@ import { authRoutes } from './auth/routes';
 import { healthRoutes } from './health/routes';
 import { demoRoutes } from './demo/routes';
 import { SocketHub } from './realtime/socket-hub';
+import { createApiKeyAuth } from './api-keys/api-key-auth';
+import { hashApiKey } from './api-keys/api-key-repository';
+import { ingestRoutes } from './ingest/routes';
+import { ScoringQueue } from './ingest/ingest-queue';
+import { VelocityStore } from './scoring/velocity';
+import { ActiveModels } from './scoring/active-models';
+import { subscribeEvents } from './events/event-bus';
+import { bridgeEventsToSockets } from './realtime/event-bridge';
+import { DEMO_API_KEY } from './demo/demo-accounts';
 
 export interface EdgecaseServer {
   config: Config;
@@ -88,20 +97,41 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   const http = createServer(app);
   const hub = new SocketHub(http, sessionMiddleware, pp);
 
+  const scoring = new ScoringQueue(config);
+  const velocity = new VelocityStore(redis, config.REDIS_PREFIX);
+  const models = new ActiveModels(db);
+  const subscriber = createRedis(config, { name: 'web-events', forBullmq: true });
+  subscriber.on('error', () => undefined);
+  const ready = subscribeEvents(subscriber, config.REDIS_PREFIX, (e) => {
+    if (e.type === 'model.changed' || e.type === 'settings.changed') models.invalidate();
+    bridgeEventsToSockets(hub, e);
+  }).catch((err) => logger().warn({ err: (err as Error).message }, 'event subscription failed'));
+  const apiKeyAuth = createApiKeyAuth(db, {
+    refuseKeyHash: config.EDGECASE_MODE === 'production' ? hashApiKey(DEMO_API_KEY) : null,
+  });
+
   const api = Router();
   api.use(express.json({ limit: '2mb' }));
-  api.use(sessionMiddleware);
-  api.use(pp.session());
+  // Upstream systems authenticate by API key only: no session is read or created on their routes.
+  const staff = Router();
+  staff.use(sessionMiddleware);
+  staff.use(pp.session());
 
-  const routes = mountRoutes(
-    api,
+  const guards = { csrf: csrf.csrfSynchronisedProtection, apiKey: apiKeyAuth };
+  const upstream = Router();
+  const upstreamRoutes = mountRoutes(upstream, ingestRoutes({ db, redis, config, scoring, velocity, models }), guards);
+  const staffRoutes = mountRoutes(
+    staff,
     [
       ...healthRoutes({ db, redis }),
       ...authRoutes({ db, config, passport: pp, csrf, limiter, hub: () => hub }),
       ...demoRoutes(config),
     ],
-    csrf.csrfSynchronisedProtection,
+    guards,
   );
+  const routes = [...upstreamRoutes, ...staffRoutes];
+  api.use(upstream);
+  api.use(staff);
   api.use(notFoundHandler);
   api.use(errorHandler);
   app.use('/api', api);
@@ -138,6 +168,9 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       if (closed) return;
       closed = true;
       store.stopExpiringSessions();
+      await ready;
+      subscriber.disconnect();
+      await scoring.close().catch(() => undefined);
       await hub.close();
       await new Promise<void>((resolve) => (http.listening ? http.close(() => resolve()) : resolve()));
       redis.disconnect();

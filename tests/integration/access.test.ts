@@ -7,9 +7,13 @@ import { csrfToken, signedInAgent, startTestServer, type TestServer, type Agent 
  * Who may call what, written out by hand. The test fails when a mounted route
  * is missing here (so a new route cannot skip this table) and when the server
  * lets a role in that the table keeps out, or the other way round.
- * `anyone` = no session needed; `signed-in` = every staff role.
+ * `anyone` = no session needed; `signed-in` = every staff role; `api-key` =
+ * upstream systems only: no staff session gets in, whatever its role.
  */
-const EXPECTED: Record<string, 'anyone' | 'signed-in' | Role[]> = {
+const EXPECTED: Record<string, 'anyone' | 'signed-in' | 'api-key' | Role[]> = {
+  'POST /v1/transactions': 'api-key',
+  'GET /v1/transactions/:id': 'api-key',
+  'POST /v1/decisions': 'api-key',
   'GET /health': 'anyone',
   'GET /auth/csrf': 'anyone',
   'POST /auth/login': 'anyone',
@@ -35,6 +39,7 @@ const concretePath = (p: string) => `/api${p.replace(/:(\w+)/g, 'probe-$1')}`;
 
 function allowed(rule: (typeof EXPECTED)[string], role: Role | null): boolean {
   if (rule === 'anyone') return true;
+  if (rule === 'api-key') return false;
   if (role === null) return false;
   return rule === 'signed-in' || rule.includes(role);
 }
@@ -63,6 +68,9 @@ describe('route access table', () => {
     if (allowed(EXPECTED[key], role)) {
       expect([401, 403], `${key} as ${role ?? 'nobody'} answered ${res.status}`).not.toContain(res.status);
       expect(res.status).toBeLessThan(500);
+    } else if (EXPECTED[key] === 'api-key') {
+      expect(res.status).toBe(401);
+      expect(res.body.error.code).toBe('api_key_missing');
     } else {
       expect(res.status).toBe(role === null ? 401 : 403);
       expect(res.body.error.code).toBe(role === null ? 'unauthenticated' : 'forbidden');

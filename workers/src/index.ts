@@ -4,6 +4,7 @@ import { openDatabase } from '../../server/src/db/database';
 import { logger } from '../../server/src/lib/logger';
 import { createMailWorker } from './mail.worker';
 import { createMaintenanceWorker } from './maintenance.worker';
+import { createScoringWorker } from './scoring.worker';
 
 process.env.EDGECASE_PROCESS ??= 'workers';
 
@@ -25,7 +26,13 @@ async function main() {
   if (wants('maintenance')) {
     const m = await createMaintenanceWorker(c, db);
     workers.push(m.worker as unknown as Worker);
-    queues.push(m.queue as unknown as Queue);
+    queues.push(m.queue as unknown as Queue, m.scoring as unknown as Queue);
+  }
+  const closers: (() => Promise<void>)[] = [];
+  if (wants('scoring')) {
+    const s = await createScoringWorker(c, db, Number(process.env.SCORING_CONCURRENCY ?? 4));
+    workers.push(s.worker as unknown as Worker);
+    closers.push(s.close);
   }
   for (const w of workers) {
     w.on('failed', (job, err) => logger().warn({ queue: w.name, jobId: job?.id, err: err.message }, 'job failed'));
@@ -41,6 +48,7 @@ async function main() {
       force.unref();
       await Promise.allSettled(workers.map((w) => w.close()));
       await Promise.allSettled(queues.map((q) => q.close()));
+      await Promise.allSettled(closers.map((f) => f()));
       await db.close().catch(() => undefined);
       process.exit(0);
     })();

@@ -50,9 +50,14 @@ export function accessGuard(access: Access): RequestHandler {
  * Registers routes on a router with their access guard and CSRF check in front,
  * and returns the table of what was registered (used by the access tests).
  */
-export function mountRoutes(router: Router, specs: RouteSpec[], csrfProtection: RequestHandler): RouteSpec[] {
+export function mountRoutes(
+  router: Router,
+  specs: RouteSpec[],
+  guards: { csrf: RequestHandler; apiKey: (scope: string) => RequestHandler },
+): RouteSpec[] {
+  const csrfProtection = guards.csrf;
   for (const spec of specs) {
-    const chain: RequestHandler[] = [accessGuard(spec.access)];
+    const chain: RequestHandler[] = [spec.access.kind === 'apiKey' ? guards.apiKey(spec.access.scope) : accessGuard(spec.access)];
     const wantsCsrf = spec.csrf ?? (isStateChanging(spec.method) && spec.access.kind !== 'apiKey');
     if (wantsCsrf) chain.push(csrfProtection);
     const handlers = Array.isArray(spec.handler) ? spec.handler : [spec.handler];

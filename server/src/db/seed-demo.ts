@@ -3,7 +3,8 @@ import type { Config } from '../config/index';
 import { hashPassword } from '../auth/password';
 import { createUser, findUserByEmail } from '../auth/user-repository';
 import { appendAudit } from '../audit/audit-repository';
-import { DEMO_ACCOUNTS } from '../demo/demo-accounts';
+import { DEMO_ACCOUNTS, DEMO_API_KEY } from '../demo/demo-accounts';
+import { createApiKey, findApiKeyByHash, hashApiKey } from '../api-keys/api-key-repository';
 
 /**
  * Seeds the invented demo issuer's staff (and, as later parts land, its
@@ -18,6 +19,10 @@ export async function seedDemo(db: Database, c: Config): Promise<{ created: stri
     if (await findUserByEmail(db, account.email)) continue;
     await createUser(db, { ...account, passwordHash: hash });
     created.push(account.email);
+  }
+  if (!(await findApiKeyByHash(db, hashApiKey(DEMO_API_KEY)))) {
+    await createApiKey(db, { name: 'Demo upstream (local only)', scopes: ['transactions:write', 'transactions:read', 'decisions:write'], plainKey: DEMO_API_KEY });
+    created.push('demo API key');
   }
   if (created.length > 0) {
     await appendAudit(db, {

@@ -7,3 +7,6 @@ export const DEMO_ACCOUNTS: { email: string; displayName: string; role: Role }[]
   { email: 'scientist@demo.test', displayName: 'Dara Okafor', role: 'data_scientist' },
   { email: 'admin@demo.test', displayName: 'Ari Lindqvist', role: 'admin' },
 ];
+
+/** The local demo's upstream API key (demo and test modes only; a production start refuses it). */
+export const DEMO_API_KEY = process.env.EDGECASE_DEMO_API_KEY ?? 'edgecase-demo-key';

@@ -25,6 +25,17 @@ function normalise(err: unknown): AppError {
   if (e.code === 'EBADCSRFTOKEN') {
     return new AppError({ status: 403, code: 'csrf_invalid', message: 'The form has expired. Reload and try again.' });
   }
+  // The database or Redis is unreachable: a transient refusal, never a 500.
+  const name = (err as { name?: string })?.name ?? '';
+  if (
+    name.startsWith('SequelizeConnection') ||
+    name === 'ConnectionAcquireTimeoutError' ||
+    name === 'SequelizeHostNotReachableError' ||
+    name === 'MaxRetriesPerRequestError' ||
+    /Connection is closed|Stream isn't writeable|ECONNREFUSED|enableOfflineQueue/.test(e.message ?? '')
+  ) {
+    return AppError.unavailable('A service the request needs is unavailable; nothing was changed. Retry shortly.', 2);
+  }
   if (typeof status === 'number' && status >= 400 && status < 500) {
     return new AppError({ status, code: e.type ?? 'invalid_request', message: e.expose && e.message ? e.message : 'Bad request.' });
   }

@@ -60,7 +60,8 @@ export const m0002: Migration = {
       ip: { type: DataTypes.STRING(45), allowNull: true },
       lat: { type: DataTypes.DOUBLE, allowNull: true },
       lon: { type: DataTypes.DOUBLE, allowNull: true },
-      status: { type: DataTypes.ENUM('accepted', 'scored'), allowNull: false, defaultValue: 'accepted' },
+      // historical: back-filled rows that were never scored live (seed, CSV back-fill); they feed training only.
+      status: { type: DataTypes.ENUM('accepted', 'scored', 'historical'), allowNull: false, defaultValue: 'accepted' },
     });
     await qi.addIndex('transactions', ['card_id', 'occurred_at']);
     await qi.addIndex('transactions', ['occurred_at']);

@@ -1,0 +1,156 @@
+import { randomUUID } from 'node:crypto';
+import { QueryTypes, type Transaction } from 'sequelize';
+import type { Database } from '../db/database';
+import type { NormalisedTransaction } from '@shared/api/transactions';
+
+export type TransactionSource = 'api' | 'decision' | 'csv' | 'seed';
+
+/** What the API tells a caller about a stored transaction. */
+export interface TransactionView {
+  id: string;
+  transactionId: number;
+  status: 'accepted' | 'scored';
+  occurredAt: string;
+  receivedAt: string;
+  score: null | {
+    probability: number;
+    margin: number;
+    normalizedMargin: number;
+    modelVersionId: number;
+    reasons: { feature: string; value: number | string | null; contribution: number; text: string }[];
+    scoredAt: string;
+  };
+  alerted: boolean;
+  caseId: number | null;
+}
+
+/**
+ * Stores a batch: cards upserted by their keyed hash, transactions inserted
+ * with INSERT IGNORE on the upstream id. Rows carrying this call's batch tag
+ * are the new ones; any other row with the same id is a duplicate, answered
+ * with what was stored before. Returns internal ids by upstream id.
+ */
+export async function storeTransactions(
+  db: Database,
+  items: NormalisedTransaction[],
+  meta: { source: TransactionSource; apiKeyId: number | null; receivedAt: Date },
+  outer?: Transaction,
+): Promise<{ batch: string; inserted: Map<string, number>; existing: Map<string, number> }> {
+  const batch = randomUUID();
+  const inserted = new Map<string, number>();
+  const existing = new Map<string, number>();
+  if (items.length === 0) return { batch, inserted, existing };
+  const run = async (t: Transaction) => {
+    const cards = new Map<string, NormalisedTransaction['card']>();
+    for (const it of items) cards.set(it.card.panHash, it.card);
+    // Sorted, so concurrent batches lock card rows in the same order and cannot deadlock on them.
+    const cardRows = [...cards.values()].sort((a, b) => (a.panHash < b.panHash ? -1 : 1));
+    await db.sequelize.query(
+      `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${cardRows.map(() => "(?, ?, ?, ?, 'active', ?, ?)").join(', ')}
+       ON DUPLICATE KEY UPDATE id = id`,
+      { replacements: cardRows.flatMap((c) => [c.panHash, c.bin, c.last4, c.cardholderId, meta.receivedAt, meta.receivedAt]), type: QueryTypes.INSERT, transaction: t },
+    );
+    const ids = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE pan_hash IN (:h)', {
+      replacements: { h: cardRows.map((c) => c.panHash) },
+      type: QueryTypes.SELECT,
+      transaction: t,
+    });
+    const cardId = new Map(ids.map((r) => [r.pan_hash, Number(r.id)]));
+    const cols =
+      '(external_id, source, ingest_batch, api_key_id, card_id, occurred_at, received_at, amount_minor, currency, currency_exponent, merchant_ref, merchant_name, mcc, merchant_country, card_present, channel, device_id, ip, lat, lon, status)';
+    for (let i = 0; i < items.length; i += 500) {
+      const chunk = items.slice(i, i + 500);
+      await db.sequelize.query(
+        `INSERT IGNORE INTO transactions ${cols} VALUES ${chunk.map(() => "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 'accepted')").join(', ')}`,
+        {
+          replacements: chunk.flatMap((x) => [
+            x.externalId,
+            meta.source,
+            batch,
+            meta.apiKeyId,
+            cardId.get(x.card.panHash),
+            x.occurredAt,
+            meta.receivedAt,
+            x.amountMinor,
+            x.currency,
+            x.currencyExponent,
+            x.merchant.id,
+            x.merchant.name,
+            x.merchant.mcc,
+            x.merchant.country,
+            x.cardPresent,
+            x.channel,
+            x.deviceId ?? null,
+            x.ip ?? null,
+            x.lat ?? null,
+            x.lon ?? null,
+          ]),
+          type: QueryTypes.INSERT,
+          transaction: t,
+        },
+      );
+    }
+    const rows = await db.sequelize.query<{ id: number; external_id: string; ingest_batch: string }>(
+      'SELECT id, external_id, ingest_batch FROM transactions WHERE external_id IN (:ids)',
+      { replacements: { ids: items.map((x) => x.externalId) }, type: QueryTypes.SELECT, transaction: t },
+    );
+    for (const r of rows) (r.ingest_batch === batch ? inserted : existing).set(r.external_id, Number(r.id));
+  };
+  if (outer) await run(outer);
+  else await db.sequelize.transaction(run);
+  return { batch, inserted, existing };
+}
+
+interface ViewRow {
+  id: number;
+  external_id: string;
+  status: 'accepted' | 'scored';
+  occurred_at: Date;
+  received_at: Date;
+  probability: number | null;
+  margin: number | null;
+  normalized_margin: number | null;
+  model_version_id: number | null;
+  reasons: string | null;
+  scored_at: Date | null;
+  alerted: number | null;
+  case_id: number | null;
+}
+
+/** The current view of transactions by upstream id (status, score, reasons, alert and case). */
+export async function viewTransactions(db: Database, externalIds: string[]): Promise<Map<string, TransactionView>> {
+  const out = new Map<string, TransactionView>();
+  if (externalIds.length === 0) return out;
+  const rows = await db.sequelize.query<ViewRow>(
+    `SELECT t.id, t.external_id, t.status, t.occurred_at, t.received_at, s.probability, s.margin, s.normalized_margin,
+            s.model_version_id, s.reasons, s.scored_at, s.alerted, a.case_id
+     FROM transactions t
+     LEFT JOIN transaction_scores s ON s.transaction_id = t.id
+     LEFT JOIN alerts a ON a.transaction_id = t.id
+     WHERE t.external_id IN (:ids)`,
+    { replacements: { ids: externalIds }, type: QueryTypes.SELECT },
+  );
+  for (const r of rows) {
+    out.set(r.external_id, {
+      id: r.external_id,
+      transactionId: Number(r.id),
+      status: r.status,
+      occurredAt: new Date(r.occurred_at).toISOString(),
+      receivedAt: new Date(r.received_at).toISOString(),
+      score:
+        r.probability === null
+          ? null
+          : {
+              probability: r.probability,
+              margin: r.margin!,
+              normalizedMargin: r.normalized_margin!,
+              modelVersionId: Number(r.model_version_id),
+              reasons: JSON.parse(r.reasons ?? '[]'),
+              scoredAt: new Date(r.scored_at!).toISOString(),
+            },
+      alerted: Boolean(r.alerted),
+      caseId: r.case_id === null ? null : Number(r.case_id),
+    });
+  }
+  return out;
+}
