@@ -56,7 +56,7 @@ export interface BinningOptions {
   exact?: boolean;
   /** Categories seen fewer times pool into "other". Default 5 (1 in exact mode is not implied: same rule). */
   minCategoryCount?: number;
-  /** Row sample size for quantile estimation. Default 200,000. */
+  /** Row sample size for quantile estimation. Default 100,000. */
   sampleSize?: number;
   /** Seed of the row sample. Default 1. */
   seed?: number;
@@ -121,7 +121,7 @@ function fitNumeric(name: string, col: NumericColumn, o: Required<BinningOptions
       if (v === v) sample[j++] = v;
     }
   } else {
-    // With replacement: cheap, seeded, and the quantile error of a 200k sample is far below a bin width.
+    // With replacement: cheap, seeded, and the quantile error of a 100k sample (about 390 rows per bin at 255 bins) is well below a bin width.
     const rand = mulberry32(o.seed ^ hashName(name));
     sample = new Float64Array(o.sampleSize);
     let j = 0;
@@ -196,7 +196,7 @@ export function fitBinning(columns: FeatureColumns, specs: FeatureSpec[], option
     maxBins: options.maxBins ?? 255,
     exact: options.exact ?? false,
     minCategoryCount: options.minCategoryCount ?? 5,
-    sampleSize: options.sampleSize ?? 200_000,
+    sampleSize: options.sampleSize ?? 100_000,
     seed: options.seed ?? 1,
   };
   if (!(o.maxBins >= 2 && o.maxBins <= 255)) throw new TrainingError('bad-data', `maxBins must be in 2..255, got ${o.maxBins}`);
@@ -255,15 +255,15 @@ export function binColumn(bins: FeatureBins, col: NumericColumn | CategoricalCol
           out[j] = miss;
           continue;
         }
-        let p = 0;
-        if (t[p + 127] < v) p += 128;
-        if (t[p + 63] < v) p += 64;
-        if (t[p + 31] < v) p += 32;
-        if (t[p + 15] < v) p += 16;
-        if (t[p + 7] < v) p += 8;
-        if (t[p + 3] < v) p += 4;
-        if (t[p + 1] < v) p += 2;
-        if (t[p] < v) p += 1;
+        // Arithmetic on the comparison results keeps the search free of unpredictable branches.
+        let p = +(t[127] < v) << 7;
+        p += +(t[p + 63] < v) << 6;
+        p += +(t[p + 31] < v) << 5;
+        p += +(t[p + 15] < v) << 4;
+        p += +(t[p + 7] < v) << 3;
+        p += +(t[p + 3] < v) << 2;
+        p += +(t[p + 1] < v) << 1;
+        p += +(t[p] < v);
         out[j] = p;
       }
     } else {

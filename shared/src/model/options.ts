@@ -35,8 +35,8 @@ export const trainOptionsSchema = z
     maxBins: z.number().int().min(2).max(255).default(255),
     /** Categories seen fewer times than this pool into the "other" bin. Default 5. */
     minCategoryCount: z.number().int().min(1).default(5),
-    /** Quantile cuts are estimated from a seeded sample of at most this many rows. Default 200,000. */
-    binSampleSize: z.number().int().min(1000).default(200_000),
+    /** Quantile cuts are estimated from a seeded sample of at most this many rows. Default 100,000. */
+    binSampleSize: z.number().int().min(1000).default(100_000),
     /**
      * Histogram maintenance: 'incremental' (default) updates histograms from the rows on the
      * smaller side of the chosen split; 'rebuild' recomputes them from all rows every round.

@@ -239,6 +239,128 @@ function describe(binning: Binning, c: Candidate) {
   };
 }
 
+
+// ---------------------------------------------------------------------------
+// Hot loops, kept as small top-level functions so the JIT sees one array type
+// each (Uint8Array codes in quantile mode) and optimises them in isolation.
+
+/** Per-class histogram of stored weights for one feature: H[code] (legitimate), H[nC + code] (fraud). */
+function buildHistogram(col: CodeArray, w: Float64Array, nNeg: number, n: number, H: Float64Array, nC: number, tmp: Float64Array): void {
+  // Four interleaved partial histograms break the store-to-load chain on runs of equal codes.
+  tmp.fill(0, 0, 4 * nC);
+  const o1 = nC;
+  const o2 = 2 * nC;
+  const o3 = 3 * nC;
+  let i = 0;
+  const e = nNeg - 3;
+  for (; i < e; i += 4) {
+    tmp[col[i]] += w[i];
+    tmp[o1 + col[i + 1]] += w[i + 1];
+    tmp[o2 + col[i + 2]] += w[i + 2];
+    tmp[o3 + col[i + 3]] += w[i + 3];
+  }
+  for (; i < nNeg; i++) tmp[col[i]] += w[i];
+  for (let b = 0; b < nC; b++) H[b] = tmp[b] + tmp[o1 + b] + tmp[o2 + b] + tmp[o3 + b];
+  for (let b = nC; b < 2 * nC; b++) H[b] = 0;
+  for (i = nNeg; i < n; i++) H[nC + col[i]] += w[i];
+}
+
+/**
+ * One pass over the chosen column: F_i += alpha h(x_i), count training errors,
+ * collect the rows on the small side into idx. Returns [m, mNeg, errors] in out.
+ */
+function scanChosen(
+  col: CodeArray,
+  hv: Float64Array,
+  isSmall: Uint8Array,
+  Ft: Float64Array,
+  idx: Int32Array,
+  nNeg: number,
+  n: number,
+  out: Int32Array,
+): void {
+  let m = 0;
+  let errors = 0;
+  for (let i = 0; i < nNeg; i++) {
+    const c = col[i];
+    const v = Ft[i] + hv[c];
+    Ft[i] = v;
+    errors += v > 0 ? 1 : 0;
+    idx[m] = i;
+    m += isSmall[c];
+  }
+  const mNeg = m;
+  for (let i = nNeg; i < n; i++) {
+    const c = col[i];
+    const v = Ft[i] + hv[c];
+    Ft[i] = v;
+    errors += v <= 0 ? 1 : 0;
+    idx[m] = i;
+    m += isSmall[c];
+  }
+  out[0] = m;
+  out[1] = mNeg;
+  out[2] = errors;
+}
+
+/** Rescales the small side's stored weights; delta_j = w_old (ratio_y - 1). */
+function rescaleSmall(idx: Int32Array, w: Float64Array, delta: Float64Array, m: number, mNeg: number, ratioN: number, ratioP: number): void {
+  const rn = ratioN - 1;
+  const rp = ratioP - 1;
+  for (let j = 0; j < mNeg; j++) {
+    const i = idx[j];
+    const wo = w[i];
+    w[i] = wo * ratioN;
+    delta[j] = wo * rn;
+  }
+  for (let j = mNeg; j < m; j++) {
+    const i = idx[j];
+    const wo = w[i];
+    w[i] = wo * ratioP;
+    delta[j] = wo * rp;
+  }
+}
+
+/**
+ * H_new = H_old + (ratio_y - 1) H_small for one feature. Legitimate rows go
+ * through four partial histograms (tmp) so runs of equal codes do not chain
+ * the add latency; fraud rows are few and go straight in.
+ */
+function addSmallSide(
+  H: Float64Array,
+  col: CodeArray,
+  idx: Int32Array,
+  delta: Float64Array,
+  m: number,
+  mNeg: number,
+  off: number,
+  tmp: Float64Array,
+): void {
+  if (mNeg >= 64) {
+    const o1 = off;
+    const o2 = 2 * off;
+    const o3 = 3 * off;
+    tmp.fill(0, 0, 4 * off);
+    let j = 0;
+    const e = mNeg - 3;
+    for (; j < e; j += 4) {
+      tmp[col[idx[j]]] += delta[j];
+      tmp[o1 + col[idx[j + 1]]] += delta[j + 1];
+      tmp[o2 + col[idx[j + 2]]] += delta[j + 2];
+      tmp[o3 + col[idx[j + 3]]] += delta[j + 3];
+    }
+    for (; j < mNeg; j++) tmp[col[idx[j]]] += delta[j];
+    for (let b = 0; b < off; b++) H[b] += tmp[b] + tmp[o1 + b] + tmp[o2 + b] + tmp[o3 + b];
+  } else {
+    for (let j = 0; j < mNeg; j++) H[col[idx[j]]] += delta[j];
+  }
+  for (let j = mNeg; j < m; j++) H[off + col[idx[j]]] += delta[j];
+}
+
+function scaleRange(w: Float64Array, from: number, to: number, g: number): void {
+  for (let i = from; i < to; i++) w[i] *= g;
+}
+
 function boost(
   binning: Binning,
   codes: CodeArray[],
@@ -271,22 +393,17 @@ function boost(
   const delta = new Float64Array(n);
   const hist = nCodes.map((nC) => new Float64Array(2 * nC));
 
+  const tmp = new Float64Array(4 * Math.max(...nCodes));
   const rebuild = () => {
-    for (let f = 0; f < F; f++) {
-      const H = hist[f];
-      const col = codes[f];
-      const nC = nCodes[f];
-      H.fill(0);
-      for (let i = 0; i < nNeg; i++) H[col[i]] += w[i];
-      for (let i = nNeg; i < n; i++) H[nC + col[i]] += w[i];
-    }
+    for (let f = 0; f < F; f++) buildHistogram(codes[f], w, nNeg, n, hist[f], nCodes[f], tmp);
   };
   const absorbScales = () => {
-    for (let i = 0; i < nNeg; i++) w[i] *= gN;
-    for (let i = nNeg; i < n; i++) w[i] *= gP;
+    scaleRange(w, 0, nNeg, gN);
+    scaleRange(w, nNeg, n, gP);
     gN = 1;
     gP = 1;
   };
+  const scanOut = new Int32Array(3);
   rebuild();
 
   // Validation state.
@@ -419,51 +536,21 @@ function boost(
     const col = codes[cand.f];
     const isSmall = new Uint8Array(nC);
     for (let b = 0; b < nC; b++) isSmall[b] = (side[b] === 1) === smallRight ? 1 : 0;
-    const hv = new Float64Array([-alpha * s, alpha * s]);
-    let m = 0;
-    let errors = 0;
-    for (let i = 0; i < nNeg; i++) {
-      const c = col[i];
-      const v = Ft[i] + hv[side[c]];
-      Ft[i] = v;
-      if (v > 0) errors++;
-      idx[m] = i;
-      m += isSmall[c];
-    }
-    const mNeg = m;
-    for (let i = nNeg; i < n; i++) {
-      const c = col[i];
-      const v = Ft[i] + hv[side[c]];
-      Ft[i] = v;
-      if (v <= 0) errors++;
-      idx[m] = i;
-      m += isSmall[c];
-    }
+    // alpha h by code: h = s on the right side, -s on the left.
+    const hv = new Float64Array(nC);
+    for (let b = 0; b < nC; b++) hv[b] = side[b] ? alpha * s : -alpha * s;
+    scanChosen(col, hv, isSmall, Ft, idx, nNeg, n, scanOut);
+    const m = scanOut[0];
+    const mNeg = scanOut[1];
+    const errors = scanOut[2];
 
     // --- Weight update of the small side and the exact histogram correction.
-    for (let j = 0; j < mNeg; j++) {
-      const i = idx[j];
-      const wo = w[i];
-      w[i] = wo * ratioN;
-      delta[j] = wo * (ratioN - 1);
-    }
-    for (let j = mNeg; j < m; j++) {
-      const i = idx[j];
-      const wo = w[i];
-      w[i] = wo * ratioP;
-      delta[j] = wo * (ratioP - 1);
-    }
+    rescaleSmall(idx, w, delta, m, mNeg, ratioN, ratioP);
     if (opts.histogramUpdate === 'rebuild' || t % opts.rebuildEvery === 0) {
       absorbScales();
       rebuild();
     } else {
-      for (let f = 0; f < F; f++) {
-        const Hf = hist[f];
-        const cf = codes[f];
-        const off = nCodes[f];
-        for (let j = 0; j < mNeg; j++) Hf[cf[idx[j]]] += delta[j];
-        for (let j = mNeg; j < m; j++) Hf[off + cf[idx[j]]] += delta[j];
-      }
+      for (let f = 0; f < F; f++) addSmallSide(hist[f], codes[f], idx, delta, m, mNeg, nCodes[f], tmp);
     }
     if (!Number.isFinite(gP) || !Number.isFinite(gN) || !(gP > 0) || !(gN > 0)) {
       throw new TrainingError('overflow', `Class weight scales overflowed at round ${t}; try shrinkage < 1`);
@@ -477,7 +564,7 @@ function boost(
       let sum = 0;
       let e = 0;
       for (let i = 0; i < nv; i++) {
-        const v = Fv[i] + hv[side[vcol[i]]];
+        const v = Fv[i] + hv[vcol[i]];
         Fv[i] = v;
         const y = vLabels[i];
         sum += (y === 1 ? cP : cN) * Math.exp(-y * v);
