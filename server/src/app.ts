@@ -125,7 +125,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
     [
       ...healthRoutes({ db, redis }),
       ...authRoutes({ db, config, passport: pp, csrf, limiter, hub: () => hub }),
-      ...demoRoutes(config),
+      ...demoRoutes(config, { redis, db }),
     ],
     guards,
   );

@@ -22,6 +22,8 @@ const EXPECTED: Record<string, 'anyone' | 'signed-in' | 'api-key' | Role[]> = {
   'GET /demo/info': 'anyone',
   'GET /demo/mail': 'signed-in',
   'GET /demo/mail/:id': 'signed-in',
+  'GET /demo/feed': ['admin'],
+  'PUT /demo/feed': ['admin'],
 };
 
 let ts: TestServer;
@@ -63,7 +65,10 @@ describe('route access table', () => {
     const agent = session?.agent ?? request.agent(ts.server.http);
     const token = session?.csrf ?? (await csrfToken(agent));
     const url = concretePath(path);
-    const req = method === 'GET' ? agent.get(url) : agent.post(url).set('X-CSRF-Token', token).send({});
+    const req =
+      method === 'GET'
+        ? agent.get(url)
+        : agent[method.toLowerCase() as 'post' | 'put' | 'patch' | 'delete'](url).set('X-CSRF-Token', token).send({});
     const res = await req;
     if (allowed(EXPECTED[key], role)) {
       expect([401, 403], `${key} as ${role ?? 'nobody'} answered ${res.status}`).not.toContain(res.status);

@@ -72,6 +72,12 @@ const schema = z.object({
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Password of the seeded demo accounts (demo mode only). */
   DEMO_PASSWORD: z.string().default('demo-password'),
+  /** Days of invented history the demo seed back-fills at first start. */
+  DEMO_HISTORY_DAYS: z.coerce.number().int().min(7).max(400).default(75),
+  /** Invented cardholders of the demo issuer. */
+  DEMO_CARDHOLDERS: z.coerce.number().int().min(50).max(100_000).default(3000),
+  /** Days a chargeback may take to arrive; training windows end this long ago. */
+  LABEL_DELAY_DAYS: z.coerce.number().int().min(0).max(180).default(21),
 });
 
 export type Config = z.infer<typeof schema> & { publicUrl: string };

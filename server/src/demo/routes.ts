@@ -1,13 +1,65 @@
+import type { Redis } from 'ioredis';
+import { z } from 'zod';
 import { PUBLIC, needs, type RouteSpec } from '../access/route-table';
+import { parseOrThrow } from '../lib/validate';
+import type { Database } from '../db/database';
+import { auditRequest } from '../audit/record-audit';
 import type { Config } from '../config/index';
 import { AppError } from '../lib/app-error';
 import { DEMO_ACCOUNTS } from './demo-accounts';
 import { listCapturedMail, readCapturedMail } from './mailbox';
 
 /** Demo-only helpers: the sign-in hint and the captured-mail viewer. Absent in production. */
-export function demoRoutes(c: Config): RouteSpec[] {
+const feedControlSchema = z
+  .object({ paused: z.boolean().optional(), rate: z.number().min(0.1).max(2000).optional() })
+  .strict()
+  .refine((v) => v.paused !== undefined || v.rate !== undefined, { message: 'Send paused, rate or both.' });
+
+export function demoRoutes(c: Config, d: { redis: Redis; db: Database }): RouteSpec[] {
   const demo = c.EDGECASE_MODE !== 'production';
+  const controlKey = `${c.REDIS_PREFIX}:demo-feed:control`;
+  const statsKey = `${c.REDIS_PREFIX}:demo-feed:stats`;
+  const feedState = async () => {
+    const [control, stats] = await Promise.all([d.redis.hgetall(controlKey), d.redis.hgetall(statsKey)]);
+    return {
+      paused: control.paused === '1',
+      rate: control.rate ? Number(control.rate) : null,
+      stats: {
+        sent: Number(stats.sent ?? 0),
+        accepted: Number(stats.accepted ?? 0),
+        rejected: Number(stats.rejected ?? 0),
+        lastError: stats.lastError || null,
+        updatedAt: stats.updatedAt || null,
+      },
+    };
+  };
   return [
+    {
+      method: 'get',
+      path: '/demo/feed',
+      access: needs('demo:control'),
+      summary: 'State of the demo transaction feed',
+      handler: async (_req, res) => {
+        if (!demo) throw AppError.notFound();
+        res.json({ feed: await feedState() });
+      },
+    },
+    {
+      method: 'put',
+      path: '/demo/feed',
+      access: needs('demo:control'),
+      summary: 'Pause, resume or change the rate of the demo feed',
+      handler: async (req, res) => {
+        if (!demo) throw AppError.notFound();
+        const body = parseOrThrow(feedControlSchema, req.body);
+        const fields: Record<string, string> = {};
+        if (body.paused !== undefined) fields.paused = body.paused ? '1' : '0';
+        if (body.rate !== undefined) fields.rate = String(body.rate);
+        await d.redis.hset(controlKey, fields);
+        await auditRequest(d.db, req, { action: 'demo.feed_control', targetType: 'demo_feed', outcome: 'success', details: body });
+        res.json({ feed: await feedState() });
+      },
+    },
     {
       method: 'get',
       path: '/demo/info',

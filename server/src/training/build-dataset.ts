@@ -11,16 +11,21 @@ export interface DatasetWindow {
   /** Labels reported after this instant are not used (defaults to now). */
   labelsAsOf?: Date;
   /**
-   * Transactions older than the label delay with no fraud label are taken as
-   * legitimate (no chargeback arrived in time). Common practice in card fraud
-   * modelling; off means only explicitly labelled rows are used.
+   * Transactions with no fraud label are taken as legitimate (no chargeback
+   * arrived in time). Common practice in card fraud modelling; it is only sound
+   * for rows older than the label delay, so the window then ends at
+   * `labelsAsOf - labelDelayDays` for both classes (keeping recent fraud labels
+   * while dropping recent unlabelled rows would inflate the fraud rate).
+   * Off: only explicitly labelled rows are used, over the whole window.
    */
   unlabelledAsLegitimate?: boolean;
-  /** Days a chargeback may take to arrive; rows newer than `labelsAsOf - delay` without a label are left out. */
+  /** Days a chargeback may take to arrive (default 30). */
   labelDelayDays?: number;
 }
 
 export interface Dataset {
+  /** The window actually used (its end moves back to the label-delay cut-off when unlabelled rows count as legitimate). */
+  window?: { from: Date; to: Date };
   set: LabelledSet;
   timestamps: Float64Array;
   amounts: Float64Array;
@@ -66,22 +71,25 @@ export async function buildDataset(db: Database, w: DatasetWindow): Promise<Data
   const asOf = w.labelsAsOf ?? new Date();
   const delayMs = (w.labelDelayDays ?? 30) * 86_400_000;
   const settledBefore = new Date(asOf.getTime() - delayMs);
+  const presume = w.unlabelledAsLegitimate ?? true;
+  const to = presume && settledBefore < w.to ? settledBefore : w.to;
   const rows = await db.sequelize.query<DataRow>(
     `SELECT t.id, t.occurred_at, t.amount_minor / POW(10, t.currency_exponent) AS amount, f.features,
             (SELECT MAX(l.label = 'fraud') FROM labels l WHERE l.transaction_id = t.id AND l.reported_at <= :asOf) AS label
      FROM transactions t JOIN transaction_features f ON f.transaction_id = t.id
      WHERE t.occurred_at >= :from AND t.occurred_at <= :to
      ORDER BY t.occurred_at, t.id`,
-    { replacements: { from: w.from, to: w.to, asOf }, type: QueryTypes.SELECT },
+    { replacements: { from: w.from, to, asOf }, type: QueryTypes.SELECT },
   );
   const kept: { r: DataRow; y: 1 | -1; presumed: boolean }[] = [];
   for (const r of rows) {
     if (r.label !== null) kept.push({ r, y: Number(r.label) === 1 ? 1 : -1, presumed: false });
-    else if ((w.unlabelledAsLegitimate ?? true) && new Date(r.occurred_at) < settledBefore) kept.push({ r, y: -1, presumed: true });
+    else if (presume) kept.push({ r, y: -1, presumed: true });
   }
   const featureRows = kept.map((k) => JSON.parse(k.r.features) as Row);
   const labels = new Int8Array(kept.map((k) => k.y));
   return {
+    window: { from: w.from, to },
     set: { columns: toColumns(featureRows), labels },
     timestamps: Float64Array.from(kept.map((k) => new Date(k.r.occurred_at).getTime())),
     amounts: Float64Array.from(kept.map((k) => Number(k.r.amount))),

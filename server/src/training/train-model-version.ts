@@ -103,7 +103,7 @@ export async function trainModelVersion(db: Database, req: TrainingRequest): Pro
       },
     },
     dataFrom: req.from,
-    dataTo: req.to,
+    dataTo: data.window?.to ?? req.to,
     trainRows: train.counts.rows,
     notes: req.notes ?? null,
     createdBy: req.createdBy ?? null,

@@ -30,6 +30,7 @@ export const CAPABILITIES = {
   'users:manage': ['admin'],
   'apikeys:manage': ['admin'],
   'demo:control': ['admin'],
+  'data:backfill': ['data_scientist', 'admin'],
   'mail:read-demo': ['investigator', 'supervisor', 'data_scientist', 'admin'],
 } as const satisfies Record<string, readonly Role[]>;
 

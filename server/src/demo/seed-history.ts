@@ -1,0 +1,145 @@
+import type { Redis } from 'ioredis';
+import { QueryTypes } from 'sequelize';
+import type { Database } from '../db/database';
+import type { Config } from '../config/index';
+import { validateTransaction } from '@shared/api/transactions';
+import { featureRow } from '@shared/features/definitions';
+import { isHighRiskMcc } from '@shared/reference/mcc';
+import { normaliseTransaction } from '../ingest/normalise-transaction';
+import { storeTransactions } from '../ingest/transaction-repository';
+import { VelocityStore } from '../scoring/velocity';
+import { trainModelVersion } from '../training/train-model-version';
+import { appendAudit } from '../audit/audit-repository';
+import { createDemoWorld, type SimulatedTransaction } from './simulator/index';
+
+/** The history seed and the live feed share one world (same cardholders and cards), with different id prefixes. */
+export const DEMO_WORLD_SEED = 20_261_130;
+
+export interface HistoryOptions {
+  days: number;
+  cardholders: number;
+  /** Days a chargeback may take to arrive; the first model trains on rows older than this. */
+  labelDelayDays: number;
+  log?: (line: string) => void;
+}
+
+/**
+ * Back-fills the invented issuer's history the way production back-fill
+ * works: each transaction validated and tokenised like an ingest, stored as
+ * historical, its features computed in time order through the same velocity
+ * state the live scorer uses, and its label recorded when it would have been
+ * known (chargebacks weeks later; only some legitimate ones confirmed). Then
+ * the first champion is trained on it, so the demo scores from its first
+ * minute. Runs once: a database that already has seeded history is left alone.
+ */
+export async function seedDemoHistory(db: Database, redis: Redis, c: Config, o: HistoryOptions): Promise<{ rows: number; modelVersionId: number | null }> {
+  const [{ n }] = await db.sequelize.query<{ n: number }>("SELECT COUNT(*) AS n FROM transactions WHERE source = 'seed'", { type: QueryTypes.SELECT });
+  if (Number(n) > 0) return { rows: 0, modelVersionId: null };
+  const log = o.log ?? (() => undefined);
+  const now = new Date();
+  const to = new Date(now.getTime() - 10 * 60_000);
+  const from = new Date(to.getTime() - o.days * 86_400_000);
+  const world = createDemoWorld({ seed: DEMO_WORLD_SEED, cardholders: o.cardholders });
+  const velocity = new VelocityStore(redis, c.REDIS_PREFIX);
+
+  let rows = 0;
+  let chunk: SimulatedTransaction[] = [];
+  const flush = async () => {
+    if (chunk.length === 0) return;
+    const items = chunk.flatMap((s) => {
+      const v = validateTransaction(s.payload ?? s, { now });
+      return v.ok ? [{ s, t: normaliseTransaction(v.value, c.PAN_HMAC_KEY) }] : [];
+    });
+    const stored = await storeTransactions(db, items.map((x) => x.t), { source: 'seed', apiKeyId: null, receivedAt: now });
+    const ids = [...stored.inserted.values()];
+    if (ids.length > 0) {
+      await db.sequelize.query("UPDATE transactions SET status = 'historical' WHERE id IN (:ids)", { replacements: { ids }, type: QueryTypes.UPDATE });
+    }
+    const fresh = items.filter((x) => stored.inserted.has(x.t.externalId));
+    const snaps = await velocity.observeMany(
+      fresh.map(({ t }) => ({
+        cardKey: t.card.panHash,
+        event: {
+          transactionId: t.externalId,
+          occurredAt: t.occurredAt,
+          amount: t.amount,
+          merchantRef: t.merchant.id,
+          merchantCountry: t.merchant.country,
+          lat: t.lat,
+          lon: t.lon,
+          deviceId: t.deviceId,
+        },
+      })),
+    );
+    const featureValues: unknown[] = [];
+    const labelValues: unknown[] = [];
+    fresh.forEach(({ s, t }, i) => {
+      const id = stored.inserted.get(t.externalId)!;
+      const row = featureRow(
+        {
+          amount: t.amount,
+          mcc: t.merchant.mcc,
+          mccHighRisk: isHighRiskMcc(t.merchant.mcc),
+          merchantCountry: t.merchant.country,
+          cardPresent: t.cardPresent,
+          channel: t.channel,
+          occurredAt: t.occurredAt,
+        },
+        snaps[i],
+      );
+      featureValues.push(id, JSON.stringify(row), now);
+      const truth = s.truth;
+      const reportedAt = truth.labelReportedAt ?? null;
+      if (truth.fraud && reportedAt && reportedAt <= now) {
+        labelValues.push(id, 'fraud', truth.fraudType ?? null, 'seed', reportedAt, now);
+      } else if (!truth.fraud && truth.wouldBeLabelled) {
+        labelValues.push(id, 'legitimate', null, 'seed', reportedAt ?? t.occurredAt, now);
+      }
+    });
+    if (fresh.length > 0) {
+      await db.sequelize.query(
+        `INSERT IGNORE INTO transaction_features (transaction_id, features, computed_at) VALUES ${fresh.map(() => '(?, ?, ?)').join(', ')}`,
+        { replacements: featureValues, type: QueryTypes.INSERT },
+      );
+    }
+    if (labelValues.length > 0) {
+      await db.sequelize.query(
+        `INSERT INTO labels (transaction_id, label, fraud_type, source, reported_at, created_at) VALUES ${Array.from({ length: labelValues.length / 6 }, () => '(?, ?, ?, ?, ?, ?)').join(', ')}`,
+        { replacements: labelValues, type: QueryTypes.INSERT },
+      );
+    }
+    rows += fresh.length;
+    chunk = [];
+  };
+
+  for (const s of world.history({ from, to })) {
+    chunk.push(s);
+    if (chunk.length >= 1000) {
+      await flush();
+      if (rows % 50_000 < 1000) log(`history: ${rows} transactions`);
+    }
+  }
+  await flush();
+  log(`history: ${rows} transactions from ${from.toISOString().slice(0, 10)} to ${to.toISOString().slice(0, 10)}; training the first champion`);
+
+  const outcome = await trainModelVersion(db, {
+    label: 'v1',
+    role: 'champion',
+    from,
+    to,
+    labelsAsOf: now,
+    labelDelayDays: o.labelDelayDays,
+    notes: 'First champion, trained on the seeded demo history at first start.',
+  });
+  await appendAudit(db, {
+    actorType: 'system',
+    actorLabel: 'demo seed',
+    action: 'model.register',
+    targetType: 'model_version',
+    targetId: outcome.modelVersionId,
+    outcome: 'success',
+    details: { role: 'champion', rows: outcome.counts.rows, testRocAuc: outcome.evaluation.rocAuc },
+  });
+  log(`first champion v1: ${outcome.counts.train} training rows, held-out ROC AUC ${outcome.evaluation.rocAuc.toFixed(3)}`);
+  return { rows, modelVersionId: outcome.modelVersionId };
+}
