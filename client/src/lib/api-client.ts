@@ -9,6 +9,11 @@ export class ApiError extends Error {
   readonly code: string;
   readonly fields: FieldError[] | undefined;
   readonly retryAfterSeconds: number | undefined;
+  /**
+   * The whole `error` object as the server sent it, so endpoint-specific
+   * fields (e.g. `claimedBy` on a claim conflict) survive the common parse.
+   */
+  readonly details: Readonly<Record<string, unknown>> | undefined;
 
   constructor(options: {
     status: number;
@@ -16,6 +21,7 @@ export class ApiError extends Error {
     message: string;
     fields?: FieldError[];
     retryAfterSeconds?: number;
+    details?: Record<string, unknown>;
   }) {
     super(options.message);
     this.name = 'ApiError';
@@ -23,6 +29,7 @@ export class ApiError extends Error {
     this.code = options.code;
     this.fields = options.fields;
     this.retryAfterSeconds = options.retryAfterSeconds;
+    this.details = options.details;
   }
 
   /** 4xx: retrying the same request will not change the answer. */
@@ -88,7 +95,8 @@ async function send(path: string, init: RequestInit): Promise<unknown> {
 
   const parsed = apiErrorSchema.safeParse(body);
   if (parsed.success) {
-    throw new ApiError({ status: response.status, ...parsed.data.error });
+    const details = (body as { error: Record<string, unknown> }).error;
+    throw new ApiError({ status: response.status, ...parsed.data.error, details });
   }
   throw new ApiError({
     status: response.status,
@@ -99,7 +107,7 @@ async function send(path: string, init: RequestInit): Promise<unknown> {
 
 export type RequestOptions<T> = {
   method?: 'GET' | 'POST' | 'PUT' | 'PATCH' | 'DELETE';
-  /** Sent as JSON. */
+  /** Sent as JSON; a FormData goes as multipart, its boundary set by the browser. */
   body?: unknown;
   /** When given, the response is checked against it; a mismatch is a bug, so it throws. */
   schema?: z.ZodType<T>;
@@ -117,12 +125,13 @@ export async function apiRequest<T = unknown>(path: string, options: RequestOpti
 
   const attempt = async (token: string | null) => {
     const headers: Record<string, string> = { Accept: 'application/json' };
-    if (options.body !== undefined) headers['Content-Type'] = 'application/json';
+    const multipart = options.body instanceof FormData;
+    if (options.body !== undefined && !multipart) headers['Content-Type'] = 'application/json';
     if (token) headers[CSRF_HEADER] = token;
     return send(path, {
       method,
       headers,
-      body: options.body === undefined ? undefined : JSON.stringify(options.body),
+      body: options.body === undefined ? undefined : multipart ? (options.body as FormData) : JSON.stringify(options.body),
       signal: options.signal,
     });
   };
