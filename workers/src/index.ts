@@ -5,6 +5,7 @@ import { logger } from '../../server/src/lib/logger';
 import { createMailWorker } from './mail.worker';
 import { createMaintenanceWorker } from './maintenance.worker';
 import { createScoringWorker } from './scoring.worker';
+import { createOutgoingWorker } from './outgoing.worker';
 
 process.env.EDGECASE_PROCESS ??= 'workers';
 
@@ -22,7 +23,8 @@ async function main() {
 
   const workers: Worker[] = [];
   const queues: Queue[] = [];
-  if (wants('mail')) workers.push(createMailWorker(c) as unknown as Worker);
+  if (wants('mail')) workers.push(createMailWorker(c, db) as unknown as Worker);
+  if (wants('outgoing')) workers.push(createOutgoingWorker(c, db) as unknown as Worker);
   if (wants('maintenance')) {
     const m = await createMaintenanceWorker(c, db);
     workers.push(m.worker as unknown as Worker);

@@ -48,6 +48,10 @@ const schema = z.object({
   MAIL_FROM: z.string().default('Edgecase <no-reply@edgecase.demo.test>'),
   /** Folder the local SMTP catcher writes captured mail to; the demo mailbox reads it. Empty: no demo mailbox. */
   MAIL_CATCHER_DIR: z.string().default(''),
+  /** Where events for the upstream system (card blocked/unblocked) are POSTed; empty: recorded, not delivered. */
+  UPSTREAM_WEBHOOK_URL: z.string().default(''),
+  /** Secret that signs outgoing webhooks (X-Edgecase-Signature). */
+  UPSTREAM_WEBHOOK_SECRET: z.string().min(16).default('edgecase-demo-webhook-secret'),
   /** Folder for uploaded evidence, outside the web root. */
   UPLOAD_DIR: z.string().default(path.resolve('.data/demo/uploads')),
   /** Secret that signs session cookies. */

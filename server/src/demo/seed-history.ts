@@ -10,7 +10,7 @@ import { storeTransactions } from '../ingest/transaction-repository';
 import { VelocityStore } from '../scoring/velocity';
 import { trainModelVersion } from '../training/train-model-version';
 import { appendAudit } from '../audit/audit-repository';
-import { createDemoWorld, type SimulatedTransaction } from './simulator/index';
+import { createDemoWorld, toIngestPayload, type SimulatedTransaction } from './simulator/index';
 
 /** The history seed and the live feed share one world (same cardholders and cards), with different id prefixes. */
 export const DEMO_WORLD_SEED = 20_261_130;
@@ -42,12 +42,25 @@ export async function seedDemoHistory(db: Database, redis: Redis, c: Config, o: 
   const world = createDemoWorld({ seed: DEMO_WORLD_SEED, cardholders: o.cardholders });
   const velocity = new VelocityStore(redis, c.REDIS_PREFIX);
 
+  // The issuer's customer records: names and (invented) e-mail addresses for cardholder contact.
+  const holders = world.cardholders;
+  for (let i = 0; i < holders.length; i += 1000) {
+    const part = holders.slice(i, i + 1000);
+    await db.sequelize.query(
+      `INSERT IGNORE INTO cardholders (ref, display_name, email, created_at, updated_at) VALUES ${part.map(() => '(?, ?, ?, ?, ?)').join(', ')}`,
+      {
+        replacements: part.flatMap((h) => [h.id, h.name, `${h.name.toLowerCase().replace(/[^a-z]+/g, '.').replace(/^\.|\.$/g, '')}.${h.index}@cardholders.demo.test`, now, now]),
+        type: QueryTypes.INSERT,
+      },
+    );
+  }
+
   let rows = 0;
   let chunk: SimulatedTransaction[] = [];
   const flush = async () => {
     if (chunk.length === 0) return;
     const items = chunk.flatMap((s) => {
-      const v = validateTransaction(s.payload ?? s, { now });
+      const v = validateTransaction(toIngestPayload(s), { now });
       return v.ok ? [{ s, t: normaliseTransaction(v.value, c.PAN_HMAC_KEY) }] : [];
     });
     const stored = await storeTransactions(db, items.map((x) => x.t), { source: 'seed', apiKeyId: null, receivedAt: now });

@@ -16,6 +16,8 @@ export interface AppErrorOptions {
   cause?: unknown;
   /** Extra headers to send with the error response. */
   headers?: Record<string, string>;
+  /** Extra fields of the error body (e.g. who holds a case on a claim conflict). */
+  extra?: Record<string, unknown>;
 }
 
 export class AppError extends Error {
@@ -24,6 +26,7 @@ export class AppError extends Error {
   readonly fields?: FieldIssue[];
   readonly retryAfterSeconds?: number;
   readonly headers?: Record<string, string>;
+  readonly extra?: Record<string, unknown>;
 
   constructor(options: AppErrorOptions) {
     super(options.message, { cause: options.cause });
@@ -33,6 +36,7 @@ export class AppError extends Error {
     this.fields = options.fields;
     this.retryAfterSeconds = options.retryAfterSeconds;
     this.headers = options.headers;
+    this.extra = options.extra;
   }
 
   static badRequest(message: string, fields?: FieldIssue[]): AppError {

@@ -56,6 +56,7 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
       message: appError.message,
       ...(appError.fields ? { fields: appError.fields } : {}),
       ...(appError.retryAfterSeconds !== undefined ? { retryAfterSeconds: appError.retryAfterSeconds } : {}),
+      ...(appError.extra ?? {}),
     },
   });
 };

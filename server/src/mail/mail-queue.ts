@@ -9,7 +9,7 @@ export class MailQueue {
 
   constructor(c: Config) {
     this.queue = new Queue<MailJob>(QUEUES.mail, {
-      connection: createRedis(c, { forBullmq: true, name: 'web-mail-producer' }),
+      connection: createRedis(c, { forBullmq: true, failFast: true, name: 'web-mail-producer' }),
       prefix: c.REDIS_PREFIX,
       defaultJobOptions: {
         attempts: 5,

@@ -5,6 +5,7 @@ export const QUEUES = {
   mail: 'mail',
   maintenance: 'maintenance',
   scoring: 'scoring',
+  outgoing: 'outgoing',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -36,3 +37,7 @@ export const scoringJobSchema = z.object({
   batch: z.string().min(1).max(64),
 });
 export type ScoringJob = z.infer<typeof scoringJobSchema>;
+
+/** Deliver one outbox row to the upstream system. */
+export const outgoingJobSchema = z.object({ eventId: z.number().int().positive() });
+export type OutgoingJob = z.infer<typeof outgoingJobSchema>;
