@@ -33,7 +33,7 @@ describe('AdaBoost facts (breast-cancer data, quantile bins, uniform start)', ()
       }
       expect(Math.abs(err - 0.5)).toBeLessThan(1e-12);
     }
-  });
+  }, 60_000);
 
   it('training exponential loss equals prod_t Z_t (Freund & Schapire 1997, Theorem 6 proof)', () => {
     const s = scoreBatch(fit.model, set.columns);

@@ -41,7 +41,7 @@ describe('model CLI', () => {
     const [head, first] = readFileSync(out, 'utf8').trim().split('\n');
     expect(head).toBe('id,margin,normalized_margin,probability,reason_1,contribution_1,reason_2,contribution_2,reason_3,contribution_3');
     expect(first.split(',')[0]).toBe('0');
-  });
+  }, 60_000);
 
   const bad: [string, string, string[], RegExp][] = [
     ['unknown label column', 'a,b\n1,0\n2,1\n', ['--label', 'fraud'], /unknown label column "fraud"/],
@@ -75,5 +75,5 @@ describe('model CLI', () => {
     });
     expect(r.status).toBe(2);
     expect(r.stderr).toMatch(/line 3, column "amount": "-" is not a number/);
-  });
+  }, 60_000);
 });

@@ -36,12 +36,12 @@ describe('incremental histograms vs plain full rebuild', () => {
         });
         expect(Math.abs(r.alpha - p.alpha)).toBeLessThan(1e-9);
       });
-    });
+    }, 60_000);
   }
 
   it('uses categorical stumps and missing-value routing on this data', () => {
     const fast = trainModel(input, { rounds: 120 });
     expect(fast.model.stumps.some((s) => s.kind === 'categorical')).toBe(true);
     expect(fast.model.stumps.some((s) => s.kind === 'numeric' && s.missingRight)).toBe(true);
-  });
+  }, 60_000);
 });

@@ -43,7 +43,7 @@ describe('explanations', () => {
         expect(Math.abs(sum - (F - e.expectedMargin))).toBeLessThan(1e-10);
       }
     }
-  });
+  }, 60_000);
 
   it('E[F] is the mean margin over the training rows', () => {
     for (const m of models) {
@@ -95,7 +95,7 @@ describe('compiled scorer', () => {
         expect(Math.abs(c.score(rowOf(m.columns, i)) - plain.margin[i])).toBeLessThan(1e-12);
       }
     }
-  });
+  }, 60_000);
 
   it('handles missing, unseen categories and absent features like the plain scorer', () => {
     const m = models[0];

@@ -88,6 +88,41 @@ export function stepIndex(cuts: Float64Array, v: number): number {
   return lo;
 }
 
+/**
+ * out[r] += g_f(col[r]) over a padded step table (P - 1 cuts, +Inf padded).
+ * The search adds the comparison result times the step instead of branching:
+ * score data is unsorted, so a branch per step would mispredict half the time.
+ */
+function addNumericSteps(
+  out: Float64Array,
+  col: Float64Array,
+  cuts: Float64Array,
+  values: Float64Array,
+  base: number,
+  P: number,
+  miss: number,
+): void {
+  const n = out.length;
+  if (P === 1) {
+    const v0 = values[base];
+    for (let r = 0; r < n; r++) {
+      const v = col[r];
+      out[r] += v !== v ? miss : v0;
+    }
+    return;
+  }
+  for (let r = 0; r < n; r++) {
+    const v = col[r];
+    if (v !== v) {
+      out[r] += miss;
+      continue;
+    }
+    let p = 0;
+    for (let step = P >> 1; step > 0; step >>= 1) p += +(cuts[base + p + step - 1] < v) * step;
+    out[r] += values[base + p];
+  }
+}
+
 export interface CompiledScorer {
   /** The step tables, for plotting or inspection. */
   readonly tables: StepTable[];
@@ -170,28 +205,7 @@ export function compileModel(model: Model): CompiledScorer {
           continue;
         }
         if (!(col instanceof Float64Array)) throw new ScoringInputError(`Feature "${t.feature}" is numeric: its column must be a Float64Array`);
-        const base = cutOff[i];
-        const miss = missingValues[i];
-        const P = padLen[i];
-        // Fixed-step search specialised on the table size.
-        if (P === 1) {
-          const v0 = flatValues[base];
-          for (let r = 0; r < n; r++) {
-            const v = col[r];
-            out[r] += v !== v ? miss : v0;
-          }
-        } else {
-          for (let r = 0; r < n; r++) {
-            const v = col[r];
-            if (v !== v) {
-              out[r] += miss;
-              continue;
-            }
-            let p = 0;
-            for (let step = P >> 1; step > 0; step >>= 1) if (flatCuts[base + p + step - 1] < v) p += step;
-            out[r] += flatValues[base + p];
-          }
-        }
+        addNumericSteps(out, col, flatCuts, flatValues, cutOff[i], padLen[i], missingValues[i]);
       }
       for (let i = 0; i < categorical.length; i++) {
         const t = categorical[i];
