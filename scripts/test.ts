@@ -318,7 +318,8 @@ async function main(): Promise<number> {
       });
     }
     if (wantE2e) {
-      await step('e2e-database', ['services'], 5 * 60_000, async (s) => {
+      // The demo seed back-fills weeks of history and trains the first champion: minutes, not seconds.
+      await step('e2e-database', ['services'], 20 * 60_000, async (s) => {
         const c = spawnChild({
           name: 'migrate',
           ...tsxCommand(root, 'server/src/db/migrate-cli.ts', ['--seed-demo']),
