@@ -1,6 +1,5 @@
 import { mkdtemp, readdir, readFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
-import { createServer, type AddressInfo } from 'node:net';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
@@ -15,6 +14,7 @@ import { startSmtpCatcher, type SmtpCatcherHandle } from '../../scripts/services
 import { signedInAgent, startTestServer, type Agent, type TestServer } from './helpers/test-server';
 import { installChampion } from './helpers/champion';
 import { txn } from './helpers/transactions';
+import { freePort, waitFor } from './helpers/net';
 
 let ts: TestServer;
 let key: string;
@@ -24,26 +24,6 @@ const closers: (() => Promise<unknown>)[] = [];
 let inv: { agent: Agent; csrf: string };
 let inv2: { agent: Agent; csrf: string };
 let sup: { agent: Agent; csrf: string };
-
-function freePort(): Promise<number> {
-  return new Promise((resolve) => {
-    const srv = createServer();
-    srv.listen(0, '127.0.0.1', () => {
-      const { port } = srv.address() as AddressInfo;
-      srv.close(() => resolve(port));
-    });
-  });
-}
-
-async function waitFor<T>(fn: () => Promise<T | null | undefined | false>, timeoutMs = 15_000): Promise<T> {
-  const end = Date.now() + timeoutMs;
-  for (;;) {
-    const v = await fn();
-    if (v) return v;
-    if (Date.now() > end) throw new Error('timed out waiting');
-    await new Promise((r) => setTimeout(r, 100));
-  }
-}
 
 let panSeed = 50_000;
 /** Posts a high-risk transaction on a fresh card and returns its case id once scored. */

@@ -6,21 +6,12 @@ import { createScoringWorker } from '../../workers/src/scoring.worker';
 import { connectSocket, csrfToken, DEMO_PASSWORD, sessionCookieOf, startTestServer, type TestServer } from './helpers/test-server';
 import { installChampion } from './helpers/champion';
 import { testPan, txn } from './helpers/transactions';
+import { waitFor } from './helpers/net';
 
 let ts: TestServer;
 let key: string;
 let readOnlyKey: string;
 let workers: Awaited<ReturnType<typeof createScoringWorker>>[] = [];
-
-async function waitFor<T>(fn: () => Promise<T | null | undefined | false>, timeoutMs = 15_000): Promise<T> {
-  const end = Date.now() + timeoutMs;
-  for (;;) {
-    const v = await fn();
-    if (v) return v;
-    if (Date.now() > end) throw new Error('timed out waiting');
-    await new Promise((r) => setTimeout(r, 100));
-  }
-}
 
 const post = (body: unknown, k = key) => request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${k}`).send(body as object);
 const get = (id: string, k = key) => request(ts.server.http).get(`/api/v1/transactions/${encodeURIComponent(id)}`).set('Authorization', `Bearer ${k}`);
