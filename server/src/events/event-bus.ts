@@ -12,6 +12,8 @@ export type DomainEvent =
       caseId: number;
       created: boolean;
       transactionId: number;
+      /** The upstream id, so a client or benchmark can match the alert to what it sent. */
+      externalId: string;
       probability: number;
       status: string;
       assigneeId: number | null;

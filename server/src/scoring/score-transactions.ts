@@ -260,6 +260,7 @@ async function raiseAlert(ctx: ScoringContext, t: Transaction, o: ScoreOutcome, 
     // MariaDB reports 1 affected row for an insert and 2 for the update branch of ON DUPLICATE KEY.
     created: affected === 1,
     transactionId: o.transactionId,
+    externalId: o.externalId,
     probability: o.probability,
     status: c?.status ?? 'new',
     assigneeId: c?.assignee_id ?? null,

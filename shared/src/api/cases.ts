@@ -292,6 +292,7 @@ export interface QueueAlertEvent {
   caseId: number;
   created: boolean;
   transactionId: number;
+  externalId: string;
   probability: number;
   status: string;
   assigneeId: number | null;
