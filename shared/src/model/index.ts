@@ -3,7 +3,7 @@ export * from './types';
 export * from './errors';
 export { trainOptionsSchema, parseTrainOptions, type TrainOptions, type TrainOptionsInput } from './options';
 export { fitBinning, applyBinning, binColumn, codeCount, missingCode, type Binning, type FeatureBins, type BinningOptions } from './binning';
-export { trainModel, TIE_TOLERANCE, EPS_CLIP, type RoundTrace, type TrainResult } from './train';
+export { trainModel, TIE_TOLERANCE, EPS_CLIP, type RoundTrace, type TrainResult, type TrainHooks } from './train';
 export { parseModel, serializeModel, modelSchema, MODEL_FORMAT, MODEL_SCHEMA_VERSION, type Model, type Stump, type PlattCalibration } from './model-schema';
 export { scoreRow, scoreBatch, stagedMargins, stagedScores, totalAlpha, probabilityFromMargin, type Score, type BatchScores } from './score';
 export { compileModel, buildStepTables, type CompiledScorer, type StepTable } from './compiled';

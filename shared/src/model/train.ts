@@ -92,6 +92,12 @@ export interface TrainResult {
   trace: RoundTrace[];
 }
 
+/** Per-round hooks of `trainModel` (progress reports, cooperative cancellation); both run synchronously. */
+export interface TrainHooks {
+  onRound?(t: RoundTrace): void;
+  shouldStop?(): boolean;
+}
+
 interface Candidate {
   f: number;
   /** numeric: cut k (k = K: missingness indicator); categorical: code. */
@@ -136,10 +142,15 @@ function checkColumns(set: LabelledSet, features: FeatureSpec[], what: string): 
  * @param optionsInput see `trainOptionsSchema` (validated; throws OptionsError).
  * @returns the fitted model (no calibration yet: see `calibratePlatt` /
  *   `withCalibration`) and the per-round trace.
+ * @param hooks optional, called synchronously inside the round loop: `onRound`
+ *   after every recorded round with its trace entry; `shouldStop` at the end of
+ *   each round, and `true` ends training there with the rounds so far (the
+ *   summary then reads as a shorter round budget, stoppedBy "rounds"; with
+ *   early stopping the best round so far is kept).
  * @throws TrainingError for one class only, empty data, bad columns, no stump
  *   better than chance at round 1, or weight overflow.
  */
-export function trainModel(data: TrainingData, optionsInput?: TrainOptionsInput): TrainResult {
+export function trainModel(data: TrainingData, optionsInput?: TrainOptionsInput, hooks?: TrainHooks): TrainResult {
   const opts = parseTrainOptions(optionsInput);
   const features = data.features;
   if (!Array.isArray(features) || features.length === 0) throw new TrainingError('bad-data', 'No features to train on');
@@ -179,7 +190,7 @@ export function trainModel(data: TrainingData, optionsInput?: TrainOptionsInput)
   }
   const codes = applyBinning(binning, data.columns, order);
   const vCodes = val ? applyBinning(binning, val.columns) : null;
-  const core = boost(binning, codes, nNeg, n, vCodes, val ? val.labels : null, opts);
+  const core = boost(binning, codes, nNeg, n, vCodes, val ? val.labels : null, opts, hooks);
 
   const model = buildModel(binning, features, core, opts, {
     nTrain: n,
@@ -369,6 +380,7 @@ function boost(
   vCodes: CodeArray[] | null,
   vLabels: Int8Array | null,
   opts: TrainOptions,
+  hooks?: TrainHooks,
 ): BoostResult {
   const F = codes.length;
   const nCodes = binning.features.map(codeCount);
@@ -596,6 +608,7 @@ function boost(
       bestRound = t;
     }
     if (vLoss === null) bestRound = t;
+    hooks?.onRound?.(trace[trace.length - 1]);
     if (eps <= EPS_CLIP) {
       // A perfect split: every row is on its correct side, further rounds would repeat it.
       stoppedBy = 'perfect-split';
@@ -605,6 +618,7 @@ function boost(
       stoppedBy = 'early-stopping';
       break;
     }
+    if (hooks?.shouldStop?.()) break;
   }
   if (!opts.earlyStopping) bestRound = chosen.length;
   return { chosen, alphas, trace, bestRound, stoppedBy, counts };
