@@ -13,6 +13,7 @@ import type { OutgoingEvents } from '../outgoing/outgoing-events';
 import { dispositionSchema, SCORE_CAUTION, type CaseSummary } from '@shared/api/cases';
 import type { z } from 'zod';
 import { getCaseRow, toSummary, type CaseRow } from './case-queries';
+import { demoCardholderContact } from '../demo/demo-directory';
 
 export interface CaseDeps {
   db: Database;
@@ -140,21 +141,22 @@ export async function contactCardholder(d: CaseDeps, req: Request, id: number, i
     replacements: [row.cardholder_ref],
     type: QueryTypes.SELECT,
   });
-  if (!holder?.email) throw AppError.conflict('No e-mail address is on file for this cardholder.', 'no_contact');
+  const email = holder?.email ?? (d.config.EDGECASE_MODE !== 'production' ? demoCardholderContact(row.cardholder_ref)?.email : null);
+  if (!email) throw AppError.conflict('No e-mail address is on file for this cardholder.', 'no_contact');
   const now = new Date();
   const [messageId] = (await d.db.sequelize.query(
     "INSERT INTO case_messages (case_id, to_address, subject, text, sent_by, status, created_at, updated_at) VALUES (?, ?, ?, ?, ?, 'queued', ?, ?)",
-    { replacements: [id, holder.email, input.subject, input.message, req.user!.id, now, now], type: QueryTypes.INSERT },
+    { replacements: [id, email, input.subject, input.message, req.user!.id, now, now], type: QueryTypes.INSERT },
   )) as unknown as [number];
   await d.mail.send({
-    to: [holder.email],
+    to: [email],
     subject: input.subject,
     text: `${input.message}\n\n— Fraud team (case #${id}). This message refers to your card ending ${row.last4}.`,
     purpose: 'cardholder-contact',
     related: { type: 'case_message', id: String(messageId) },
   });
   await auditRequest(d.db, req, { action: 'case.contact', targetType: 'case', targetId: id, outcome: 'success', details: { messageId: Number(messageId) } });
-  return { id: Number(messageId), to: holder.email, subject: input.subject, text: input.message, sentBy: { id: req.user!.id, displayName: req.user!.displayName }, createdAt: now.toISOString(), status: 'queued' as const };
+  return { id: Number(messageId), to: email, subject: input.subject, text: input.message, sentBy: { id: req.user!.id, displayName: req.user!.displayName }, createdAt: now.toISOString(), status: 'queued' as const };
 }
 
 /** Blocks or unblocks the card, and tells the upstream system through the outbox (exactly the same transaction). */

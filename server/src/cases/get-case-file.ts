@@ -5,6 +5,7 @@ import type { ActivityItem, AlertDetail, CaseDetail, CaseEvidence, CaseMessage, 
 import { readAlertingSettings } from '../settings/settings-repository';
 import { AppError } from '../lib/app-error';
 import { getCaseRow, toSummary } from './case-queries';
+import { demoCardholderContact } from '../demo/demo-directory';
 
 const iso = (d: Date | string) => new Date(d).toISOString();
 const ACTIVITY_LIMIT = 50;
@@ -42,7 +43,7 @@ interface AlertRow {
  * activity, related open cases by card, device or IP, notes, evidence,
  * messages and the audit timeline.
  */
-export async function getCaseFile(db: Database, id: number): Promise<CaseDetail> {
+export async function getCaseFile(db: Database, id: number, opts: { demoDirectory?: boolean } = {}): Promise<CaseDetail> {
   const row = await getCaseRow(db, id);
   if (!row) throw AppError.notFound('No such case.');
   const q = <T extends object>(sql: string, replacements: unknown[] | Record<string, unknown>) =>
@@ -179,7 +180,10 @@ export async function getCaseFile(db: Database, id: number): Promise<CaseDetail>
       ...summary,
       disposition: row.disposition,
       closedAt: row.closed_at ? iso(row.closed_at) : null,
-      cardholder: { ref: row.cardholder_ref, name: holder[0]?.display_name ?? null, email: holder[0]?.email ?? null },
+      cardholder: (() => {
+        const demo = !holder[0] && opts.demoDirectory ? demoCardholderContact(row.cardholder_ref) : null;
+        return { ref: row.cardholder_ref, name: holder[0]?.display_name ?? demo?.name ?? null, email: holder[0]?.email ?? demo?.email ?? null };
+      })(),
     },
     recommendedAction: top >= settings.declineBand ? 'decline' : top >= settings.reviewBand ? 'review' : 'approve',
     alerts: alertDetails,

@@ -32,7 +32,7 @@ export function caseRoutes(d: CaseDeps): RouteSpec[] {
       access: needs('queue:read'),
       summary: 'The case file',
       handler: async (req, res) => {
-        res.json(await getCaseFile(d.db, caseId(req.params.id)));
+        res.json(await getCaseFile(d.db, caseId(req.params.id), { demoDirectory: d.config.EDGECASE_MODE !== 'production' }));
       },
     },
     {

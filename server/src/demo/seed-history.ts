@@ -10,10 +10,11 @@ import { storeTransactions } from '../ingest/transaction-repository';
 import { VelocityStore } from '../scoring/velocity';
 import { trainModelVersion } from '../training/train-model-version';
 import { appendAudit } from '../audit/audit-repository';
-import { createDemoWorld, toIngestPayload, type SimulatedTransaction } from './simulator/index';
+import { createDemoWorld, DEMO_SEED, toIngestPayload, type SimulatedTransaction } from './simulator/index';
+import { demoCardholderEmail } from './demo-directory';
 
 /** The history seed and the live feed share one world (same cardholders and cards), with different id prefixes. */
-export const DEMO_WORLD_SEED = 20_261_130;
+export const DEMO_WORLD_SEED = DEMO_SEED;
 
 export interface HistoryOptions {
   days: number;
@@ -49,7 +50,7 @@ export async function seedDemoHistory(db: Database, redis: Redis, c: Config, o: 
     await db.sequelize.query(
       `INSERT IGNORE INTO cardholders (ref, display_name, email, created_at, updated_at) VALUES ${part.map(() => '(?, ?, ?, ?, ?)').join(', ')}`,
       {
-        replacements: part.flatMap((h) => [h.id, h.name, `${h.name.toLowerCase().replace(/[^a-z]+/g, '.').replace(/^\.|\.$/g, '')}.${h.index}@cardholders.demo.test`, now, now]),
+        replacements: part.flatMap((h) => [h.id, h.name, demoCardholderEmail(h.name, h.index), now, now]),
         type: QueryTypes.INSERT,
       },
     );

@@ -157,6 +157,17 @@ function distinctDraws(rng: Rng, items: readonly { index: number }[], cum: Float
 }
 
 /** Builds member `index` of the world; the same seed and index always give the same person and card. */
+/**
+ * The name of cardholder `index` without building the whole member: the same
+ * first draws as buildMember, so the issuer's directory (contact records) can
+ * name any cardholder the live feed adds.
+ */
+export function cardholderName(seed: number, index: number): string {
+  const rng = new Rng(hash32(seed, TAG.member, index));
+  rng.weighted(HOME_CUM);
+  return `${rng.pick(GIVEN_NAMES)} ${rng.pick(FAMILY_NAMES)}`;
+}
+
 export function buildMember(seed: number, index: number, dir: MerchantDirectory): Member {
   const { txPerDay, rhythm } = memberBasics(seed, index);
   const rng = new Rng(hash32(seed, TAG.member, index));

@@ -12,3 +12,4 @@ export type { Cardholder, DemoCard, Habits } from './cardholders';
 export type { Merchant } from './merchants';
 export type { City } from './places';
 export { ipRegion } from './network';
+export { cardholderName } from './cardholders';
