@@ -8,6 +8,7 @@ import type { LoadedModel } from '../model-registry/model-repository';
 import { priorityFor, type AlertingSettings } from '../settings/settings-repository';
 import { publishEvents, type DomainEvent } from '../events/event-bus';
 import type { VelocityStore } from './velocity';
+import { routeNewCase } from '../routing/route-new-case';
 
 /** Reason codes kept with every score: the largest contributions, in raw units. */
 const REASONS_KEPT = 6;
@@ -244,6 +245,16 @@ async function raiseAlert(ctx: ScoringContext, t: Transaction, o: ScoreOutcome, 
     },
   )) as unknown as [number, number];
   const caseId = Number(insertId);
+  // A case this insert opened (not one it joined) goes through the routing rules once.
+  if (affected === 1) {
+    await routeNewCase(db, t, caseId, {
+      amountAtRiskMinor: Number(r.amount_minor),
+      currencyExponent: Number(r.currency_exponent),
+      mcc: r.mcc,
+      merchantCountry: r.merchant_country,
+      channel: r.channel,
+    });
+  }
   await db.sequelize.query('INSERT IGNORE INTO alerts (transaction_id, case_id, probability, created_at) VALUES (?, ?, ?, UTC_TIMESTAMP(3))', {
     replacements: [o.transactionId, caseId, o.probability],
     type: QueryTypes.INSERT,
