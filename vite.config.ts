@@ -62,6 +62,20 @@ export default defineConfig({
           hookTimeout: 60_000,
         },
       },
+      {
+        extends: true,
+        test: {
+          // Fault tests: each file starts its own MariaDB, Redis, web server and workers.
+          name: 'reliability',
+          root: here('.'),
+          environment: 'node',
+          include: ['tests/reliability/**/*.test.ts'],
+          env: { EDGECASE_MODE: 'test' },
+          fileParallelism: false,
+          testTimeout: 240_000,
+          hookTimeout: 180_000,
+        },
+      },
     ],
   },
 });
