@@ -6,14 +6,31 @@ import {
   evaluate,
   featureImportance,
   trainModel,
+  TrainingError,
   withCalibration,
   type EvaluationReport,
   type Model,
   type RoundTrace,
+  type TrainHooks,
+  type TrainingData,
   type TrainOptionsInput,
+  type TrainResult,
 } from '@shared/model/index';
 import { buildDataset, sliceSet, type Dataset, type DatasetWindow } from './build-dataset';
 import { insertModelVersion, type ModelRole } from '../model-registry/model-repository';
+import { rocPrCurves } from './evaluation-curves';
+import { buildDriftBaseline } from '../drift/baseline';
+
+/** Runs the boosting; the default is `trainModel` in this thread (the training worker runs it in a worker thread). */
+export type Trainer = (data: TrainingData, options: TrainOptionsInput, hooks: TrainHooks) => TrainResult | Promise<TrainResult>;
+
+/** The run was cancelled through its AbortSignal; nothing was registered. */
+export class TrainingCancelled extends Error {
+  constructor() {
+    super('The training run was cancelled.');
+    this.name = 'TrainingCancelled';
+  }
+}
 
 export interface TrainingRequest extends DatasetWindow {
   label: string;
@@ -26,6 +43,11 @@ export interface TrainingRequest extends DatasetWindow {
   createdBy?: number | null;
   notes?: string;
   onRound?: (t: RoundTrace, total: number) => void;
+  /** What the run is doing now, for progress displays. */
+  onPhase?: (phase: string) => void;
+  /** Aborting stops boosting after the current round; the run then throws TrainingCancelled and registers nothing. */
+  signal?: AbortSignal;
+  trainer?: Trainer;
 }
 
 export interface TrainingOutcome {
@@ -55,7 +77,13 @@ function scoreSet(model: Model, d: Dataset) {
  * engine, calibration, evaluation, and registration of the version.
  */
 export async function trainModelVersion(db: Database, req: TrainingRequest): Promise<TrainingOutcome> {
+  const startedAt = Date.now();
+  const cancelled = () => {
+    if (req.signal?.aborted) throw new TrainingCancelled();
+  };
+  req.onPhase?.('reading labelled transactions');
   const data = await buildDataset(db, req);
+  cancelled();
   const n = data.counts.rows;
   const hold = req.holdoutShare ?? 0.3;
   const trainEnd = Math.floor(n * (1 - hold));
@@ -63,10 +91,15 @@ export async function trainModelVersion(db: Database, req: TrainingRequest): Pro
   const train = sliceSet(data, 0, trainEnd);
   const valid = sliceSet(data, trainEnd, validEnd);
   const test = sliceSet(data, validEnd, n);
+  if (test.counts.rows === 0 || valid.counts.rows === 0 || train.counts.rows === 0) {
+    throw new TrainingError('bad-data', `The window holds ${n} usable transactions: too few to train, validate and test on`);
+  }
   const rounds = req.options?.rounds ?? 200;
   // Fraud is rare: start with the classes balanced (cost-sensitive start), then calibrate on held-out rows.
   const positiveWeight = train.counts.fraud > 0 ? (train.counts.rows - train.counts.fraud) / train.counts.fraud : 1;
-  const result = trainModel(
+  req.onPhase?.('boosting');
+  const boostStart = Date.now();
+  const result = await (req.trainer ?? trainModel)(
     { features: FEATURES.map(({ name, kind }) => ({ name, kind })), ...train.set, validation: valid.set },
     {
       rounds,
@@ -75,11 +108,16 @@ export async function trainModelVersion(db: Database, req: TrainingRequest): Pro
       earlyStopping: { patience: 30 },
       ...req.options,
     },
+    { onRound: (t) => req.onRound?.(t, rounds), shouldStop: () => req.signal?.aborted === true },
   );
+  const trainingMs = Date.now() - boostStart;
+  cancelled();
+  req.onPhase?.('calibrating and evaluating');
   const raw = result.model;
   const fit = calibratePlatt(compileModel(raw).scoreColumns(valid.set.columns), valid.set.labels);
   const model = withCalibration(raw, fit, 'validation');
-  const evaluation = evaluate(scoreSet(model, test), test.set.labels, {
+  const testScores = scoreSet(model, test);
+  const evaluation = evaluate(testScores, test.set.labels, {
     timestamps: test.timestamps,
     dailyBudget: req.dailyBudget ?? 50,
     amounts: test.amounts,
@@ -96,6 +134,10 @@ export async function trainModelVersion(db: Database, req: TrainingRequest): Pro
       importance: featureImportance(model),
       trace: result.trace,
       calibration: fit,
+      // Curve points from the test-set scores, and the training population for drift reports.
+      curves: rocPrCurves(testScores.margin, testScores.probability, test.set.labels),
+      baseline: buildDriftBaseline(model, train.set.columns, scoreSet(model, train).probability),
+      timing: { trainingMs, totalMs: Date.now() - startedAt },
       windows: {
         train: [new Date(train.timestamps[0]).toISOString(), new Date(train.timestamps[train.timestamps.length - 1]).toISOString()],
         validation: [new Date(valid.timestamps[0]).toISOString(), new Date(valid.timestamps[valid.timestamps.length - 1]).toISOString()],
