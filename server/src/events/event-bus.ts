@@ -1,4 +1,5 @@
 import type { Redis } from 'ioredis';
+import type { TrainingProgressEvent } from '@shared/api/models';
 
 /**
  * Domain events travel from workers to every web server over Redis pub/sub;
@@ -22,7 +23,11 @@ export type DomainEvent =
   | { type: 'case.changed'; caseId: number; status: string; assigneeId: number | null; previousAssigneeId?: number | null; at: string }
   | { type: 'transaction.scored'; transactionId: number; externalId: string; probability: number; alerted: boolean; at: string }
   | { type: 'model.changed'; at: string }
-  | { type: 'settings.changed'; at: string };
+  | { type: 'settings.changed'; at: string }
+  | ({ type: 'training.progress' } & TrainingProgressEvent)
+  | { type: 'training.cancel'; runId: number; at: string }
+  | { type: 'promotion.changed'; requestId: number; status: string; at: string }
+  | { type: 'drift.reported'; reportId: number; modelVersionId: number; flagged: string[]; at: string };
 
 export const eventsChannel = (prefix: string) => `${prefix}:events`;
 

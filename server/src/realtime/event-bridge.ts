@@ -1,4 +1,5 @@
 import type { DomainEvent } from '../events/event-bus';
+import { DRIFT_REPORTED_EVENT, PROMOTION_CHANGED_EVENT, TRAINING_PROGRESS_EVENT } from '@shared/api/models';
 import { rooms, type SocketHub } from './socket-hub';
 
 /**
@@ -16,6 +17,16 @@ export function bridgeEventsToSockets(hub: SocketHub, e: DomainEvent): void {
       break;
     case 'model.changed':
       hub.io.to([rooms.role('data_scientist'), rooms.role('supervisor')]).emit('models:changed', e);
+      break;
+    // The Models screen: live training progress, promotion requests and drift reports.
+    case 'training.progress':
+      hub.io.to([rooms.role('data_scientist'), rooms.role('supervisor')]).emit(TRAINING_PROGRESS_EVENT, e);
+      break;
+    case 'promotion.changed':
+      hub.io.to([rooms.role('data_scientist'), rooms.role('supervisor')]).emit(PROMOTION_CHANGED_EVENT, e);
+      break;
+    case 'drift.reported':
+      hub.io.to([rooms.role('data_scientist'), rooms.role('supervisor')]).emit(DRIFT_REPORTED_EVENT, e);
       break;
     default:
       break;

@@ -38,6 +38,11 @@ export const isFinished = (s: TrainingStatus) => s === 'completed' || s === 'fai
 
 /** Socket.IO event with the progress of a training run (to data scientists and supervisors). */
 export const TRAINING_PROGRESS_EVENT = 'training:progress';
+/** Socket.IO events when a promotion request is filed or decided, and when a drift report is stored. */
+export const PROMOTION_CHANGED_EVENT = 'models:promotion';
+export const DRIFT_REPORTED_EVENT = 'models:drift';
+/** Sent (by the existing bridge) when the champion or challenger changes. */
+export const MODELS_CHANGED_EVENT = 'models:changed';
 
 /** One point of the loss curve: exponential losses after round `round`. */
 export interface LossPoint {

@@ -26,6 +26,8 @@ export const CAPABILITIES = {
   'models:read': ['data_scientist', 'supervisor'],
   'models:train': ['data_scientist'],
   'models:promote': ['data_scientist'],
+  /** Four-eyes: a supervisor approves a promotion or rollback a data scientist requested. */
+  'models:approve': ['supervisor'],
   'audit:read': ['supervisor', 'admin'],
   'users:manage': ['admin'],
   'apikeys:manage': ['admin'],

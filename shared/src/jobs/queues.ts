@@ -6,6 +6,8 @@ export const QUEUES = {
   maintenance: 'maintenance',
   scoring: 'scoring',
   outgoing: 'outgoing',
+  training: 'training',
+  drift: 'drift',
 } as const;
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
 
@@ -41,3 +43,18 @@ export type ScoringJob = z.infer<typeof scoringJobSchema>;
 /** Deliver one outbox row to the upstream system. */
 export const outgoingJobSchema = z.object({ eventId: z.number().int().positive() });
 export type OutgoingJob = z.infer<typeof outgoingJobSchema>;
+
+/**
+ * A training run: a manual run by the id of its stored row (window and
+ * parameters live there), or the nightly schedule firing (the worker records
+ * the run with the schedule's parameters as they are then).
+ */
+export const trainingJobSchema = z.union([
+  z.object({ runId: z.number().int().positive() }).strict(),
+  z.object({ trigger: z.literal('schedule') }).strict(),
+]);
+export type TrainingJob = z.infer<typeof trainingJobSchema>;
+
+/** The daily drift report of the champion (PSI of the score and every feature against its training baseline). */
+export const driftJobSchema = z.object({ task: z.literal('drift-report'), requestedBy: z.number().int().positive().optional() }).strict();
+export type DriftJob = z.infer<typeof driftJobSchema>;
