@@ -19,6 +19,7 @@ import { LoginLimiter } from './auth/login-limiter';
 import { authRoutes } from './auth/routes';
 import { healthRoutes } from './health/routes';
 import { demoRoutes } from './demo/routes';
+import { backfillRoutes } from './backfill/routes';
 import { SocketHub } from './realtime/socket-hub';
 import { createApiKeyAuth } from './api-keys/api-key-auth';
 import { hashApiKey } from './api-keys/api-key-repository';
@@ -126,6 +127,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       ...healthRoutes({ db, redis }),
       ...authRoutes({ db, config, passport: pp, csrf, limiter, hub: () => hub }),
       ...demoRoutes(config, { redis, db }),
+      ...backfillRoutes({ db, config, velocity, hub }),
     ],
     guards,
   );

@@ -10,8 +10,8 @@ import { renderApp } from './support/render-app';
 const EXPECTED_NAV: Record<Role, string[]> = {
   investigator: ['Queue'],
   supervisor: ['Queue', 'Board', 'Models', 'Audit'],
-  data_scientist: ['Models'],
-  admin: ['Admin', 'Audit'],
+  data_scientist: ['Models', 'Data'],
+  admin: ['Admin', 'Audit', 'Data'],
 };
 
 const EXPECTED_HOME: Record<Role, [string, string]> = {

@@ -45,6 +45,7 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
             screen('models', 'models:read', async () => ({ Component: (await import('./routes/models')).ModelsRoute })),
             screen('admin', 'users:manage', async () => ({ Component: (await import('./routes/admin')).AdminRoute })),
             screen('audit', 'audit:read', async () => ({ Component: (await import('./routes/audit')).AuditRoute })),
+            screen('data', 'data:backfill', async () => ({ Component: (await import('./routes/data')).DataRoute })),
             { path: '*', element: <NotFoundRoute />, errorElement: <RouteError /> },
           ],
         },

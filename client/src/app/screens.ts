@@ -9,6 +9,7 @@ export const SCREENS: readonly Screen[] = [
   { path: '/models', label: 'Models', capability: 'models:read', hotkey: 'g m' },
   { path: '/admin', label: 'Admin', capability: 'users:manage', hotkey: 'g a' },
   { path: '/audit', label: 'Audit', capability: 'audit:read', hotkey: 'g u' },
+  { path: '/data', label: 'Data', capability: 'data:backfill', hotkey: 'g d' },
 ];
 
 export function screensFor(role: Role): Screen[] {
