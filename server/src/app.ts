@@ -30,6 +30,16 @@ import { ActiveModels } from './scoring/active-models';
 import { subscribeEvents } from './events/event-bus';
 import { bridgeEventsToSockets } from './realtime/event-bridge';
 import { DEMO_API_KEY } from './demo/demo-accounts';
+import { caseRoutes } from './cases/routes';
+import { MailQueue } from './mail/mail-queue';
+import { OutgoingEvents } from './outgoing/outgoing-events';
+import { boardRoutes } from './board/routes';
+import { settingsRoutes } from './settings/routes';
+import { routingRoutes } from './routing/routes';
+import { approvalRoutes } from './approvals/routes';
+import { userRoutes } from './users/routes';
+import { apiKeyRoutes } from './api-keys/routes';
+import { auditRoutes } from './audit/routes';
 
 export interface EdgecaseServer {
   config: Config;
@@ -99,6 +109,8 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   const hub = new SocketHub(http, sessionMiddleware, pp);
 
   const scoring = new ScoringQueue(config);
+  const mail = new MailQueue(config);
+  const outgoing = new OutgoingEvents(db, config);
   const velocity = new VelocityStore(redis, config.REDIS_PREFIX);
   const models = new ActiveModels(db);
   const subscriber = createRedis(config, { name: 'web-events', forBullmq: true });
@@ -127,6 +139,14 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       ...healthRoutes({ db, redis }),
       ...authRoutes({ db, config, passport: pp, csrf, limiter, hub: () => hub }),
       ...demoRoutes(config, { redis, db }),
+      ...caseRoutes({ db, redis, config, mail, outgoing }),
+      ...boardRoutes({ db, redis, config, mail }),
+      ...settingsRoutes({ db, redis, config }),
+      ...routingRoutes({ db }),
+      ...approvalRoutes({ db, redis, config, mail, outgoing }),
+      ...userRoutes({ db, config, mail, hub }),
+      ...apiKeyRoutes({ db }),
+      ...auditRoutes({ db }),
       ...backfillRoutes({ db, config, velocity, hub }),
     ],
     guards,
@@ -173,6 +193,8 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       await ready;
       subscriber.disconnect();
       await scoring.close().catch(() => undefined);
+      await mail.close().catch(() => undefined);
+      await outgoing.close().catch(() => undefined);
       await hub.close();
       await new Promise<void>((resolve) => (http.listening ? http.close(() => resolve()) : resolve()));
       redis.disconnect();

@@ -13,6 +13,7 @@ import type { OutgoingEvents } from '../outgoing/outgoing-events';
 import { dispositionSchema, SCORE_CAUTION, type CaseSummary } from '@shared/api/cases';
 import type { z } from 'zod';
 import { getCaseRow, toSummary, type CaseRow } from './case-queries';
+import { approvalLimitMinor, readSupervisionSettings } from '../settings/supervision-settings';
 import { demoCardholderContact } from '../demo/demo-directory';
 
 export interface CaseDeps {
@@ -54,7 +55,7 @@ function assertMayWork(req: Request, row: CaseRow) {
 export async function claimCase(d: CaseDeps, req: Request, id: number): Promise<CaseSummary> {
   const me = req.user!.id;
   const [, affected] = (await d.db.sequelize.query(
-    "UPDATE cases SET assignee_id = :me, status = 'claimed', version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id AND assignee_id IS NULL AND status = 'new'",
+    "UPDATE cases SET assignee_id = :me, status = 'claimed', claimed_at = UTC_TIMESTAMP(3), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id AND status = 'new' AND (assignee_id IS NULL OR assignee_id = :me)",
     { replacements: { me, id }, type: QueryTypes.UPDATE },
   )) as unknown as [unknown, number];
   const row = await mustGet(d, id);
@@ -79,7 +80,7 @@ export async function releaseCase(d: CaseDeps, req: Request, id: number): Promis
     const r = await mustGet(d, id, t);
     assertMayWork(req, r);
     await d.db.sequelize.query(
-      "UPDATE cases SET assignee_id = NULL, status = IF(status IN ('claimed', 'waiting_cardholder'), 'new', status), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = ?",
+      "UPDATE cases SET assignee_id = NULL, claimed_at = NULL, status = IF(status IN ('claimed', 'waiting_cardholder'), 'new', status), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = ?",
       { replacements: [id], type: QueryTypes.UPDATE, transaction: t },
     );
     return r;
@@ -96,7 +97,7 @@ export async function setCaseStatus(d: CaseDeps, req: Request, id: number, statu
     assertMayWork(req, r);
     if (r.status === 'awaiting_approval') throw AppError.conflict('The case waits for a supervisor’s approval.', 'awaiting_approval');
     await d.db.sequelize.query(
-      'UPDATE cases SET status = :status, assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id',
+      'UPDATE cases SET status = :status, claimed_at = COALESCE(claimed_at, UTC_TIMESTAMP(3)), assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id',
       { replacements: { status, me: req.user!.id, id }, type: QueryTypes.UPDATE, transaction: t },
     );
   });
@@ -111,7 +112,7 @@ export async function escalateCase(d: CaseDeps, req: Request, id: number, reason
     const r = await mustGet(d, id, t);
     assertMayWork(req, r);
     await d.db.sequelize.query(
-      "UPDATE cases SET status = 'escalated', escalation_reason = :reason, assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id",
+      "UPDATE cases SET status = 'escalated', escalation_reason = :reason, claimed_at = COALESCE(claimed_at, UTC_TIMESTAMP(3)), assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id",
       { replacements: { reason, me: req.user!.id, id }, type: QueryTypes.UPDATE, transaction: t },
     );
   });
@@ -202,58 +203,144 @@ function toMinor(amount: string | undefined, exponent: number): number | null {
   return Number(i) * 10 ** exponent + Number((f + '0'.repeat(exponent)).slice(0, exponent) || '0');
 }
 
+/** A decision as it is applied: amounts already in the case's minor units. */
+export interface DispositionDecision {
+  disposition: DispositionOutput['disposition'];
+  fraudType: string | null;
+  reason: string;
+  confirmedMinor: number | null;
+  recoveredMinor: number | null;
+}
+
 /**
  * Closes a case with a disposition: confirmed fraud and legitimate write one
  * training label per alerted transaction of the case (inconclusive writes
  * none: it is not a label); the case leaves the queue and the card may open a
- * new case later. A decision on a version the investigator did not see is
- * refused (409), so nobody closes a case that changed under them.
+ * new case later. Both paths close through here: a direct disposition, and an
+ * approved four-eyes proposal (then `decidedBy` is the proposer, who made the
+ * call and is named on the labels, and the request's user, the approver,
+ * closes the case).
  */
-export async function disposeCase(d: CaseDeps, req: Request, id: number, input: DispositionOutput): Promise<{ case: CaseSummary; nextCaseId: number | null }> {
+export async function applyDisposition(
+  d: Pick<CaseDeps, 'db'>,
+  t: Transaction,
+  req: Request,
+  id: number,
+  decision: DispositionDecision,
+  who: { decidedBy: number; approvalId?: number },
+): Promise<void> {
+  if (decision.disposition !== 'inconclusive') {
+    const label = decision.disposition === 'confirmed_fraud' ? 'fraud' : 'legitimate';
+    await d.db.sequelize.query(
+      `INSERT INTO labels (transaction_id, label, fraud_type, source, reported_at, case_id, created_by, created_at)
+       SELECT a.transaction_id, :label, :fraudType, 'disposition', UTC_TIMESTAMP(3), :caseId, :decidedBy, UTC_TIMESTAMP(3) FROM alerts a WHERE a.case_id = :caseId`,
+      { replacements: { label, fraudType: decision.fraudType, caseId: id, decidedBy: who.decidedBy }, type: QueryTypes.INSERT, transaction: t },
+    );
+  }
+  await d.db.sequelize.query(
+    `UPDATE cases SET status = 'closed', open_card_id = NULL, disposition = :disposition, disposition_reason = :reason, fraud_type = :fraudType,
+            amount_confirmed_minor = :confirmed, amount_recovered_minor = :recovered, closed_at = UTC_TIMESTAMP(3), closed_by = :me,
+            claimed_at = COALESCE(claimed_at, UTC_TIMESTAMP(3)), assignee_id = COALESCE(assignee_id, :decidedBy), version = version + 1, updated_at = UTC_TIMESTAMP(3)
+     WHERE id = :id`,
+    {
+      replacements: {
+        disposition: decision.disposition,
+        reason: decision.reason,
+        fraudType: decision.fraudType,
+        confirmed: decision.confirmedMinor,
+        recovered: decision.recoveredMinor,
+        me: req.user!.id,
+        decidedBy: who.decidedBy,
+        id,
+      },
+      type: QueryTypes.UPDATE,
+      transaction: t,
+    },
+  );
+  await appendAudit(
+    d.db,
+    {
+      ...actorFromRequest(req),
+      action: 'case.disposition',
+      targetType: 'case',
+      targetId: id,
+      outcome: 'success',
+      details: {
+        disposition: decision.disposition,
+        fraudType: decision.fraudType,
+        reason: decision.reason,
+        amountConfirmedMinor: decision.confirmedMinor,
+        amountRecoveredMinor: decision.recoveredMinor,
+        ...(who.approvalId === undefined ? {} : { approvalId: who.approvalId, proposedBy: who.decidedBy }),
+      },
+    },
+    t,
+  );
+}
+
+/**
+ * Decides a case. A decision on a version the investigator did not see is
+ * refused (409), so nobody closes a case that changed under them. Above the
+ * four-eyes limit (amount at risk, in the case's own currency) the decision is
+ * only proposed: stored in `case_approvals`, the case waits in
+ * `awaiting_approval` and no label is written until a second person approves.
+ */
+export async function disposeCase(
+  d: CaseDeps,
+  req: Request,
+  id: number,
+  input: DispositionOutput,
+): Promise<{ case: CaseSummary; nextCaseId: number | null; approval: { id: number; status: 'pending'; limit: number } | null }> {
   const me = req.user!;
-  await d.db.sequelize.transaction(async (t) => {
+  const approval = await d.db.sequelize.transaction(async (t) => {
     const row = await mustGet(d, id, t);
     assertMayWork(req, row);
     if (row.status === 'awaiting_approval') throw AppError.conflict('The case waits for a supervisor’s approval.', 'awaiting_approval');
     if (Number(row.version) !== input.version) throw AppError.conflict('The case changed since you opened it. Reload and decide again.', 'stale_case');
     const exp = Number(row.currency_exponent);
-    const confirmed = toMinor(input.amountConfirmed, exp);
-    const recovered = toMinor(input.amountRecovered, exp);
-    if (input.disposition !== 'inconclusive') {
-      const label = input.disposition === 'confirmed_fraud' ? 'fraud' : 'legitimate';
-      await d.db.sequelize.query(
-        `INSERT INTO labels (transaction_id, label, fraud_type, source, reported_at, case_id, created_by, created_at)
-         SELECT a.transaction_id, :label, :fraudType, 'disposition', UTC_TIMESTAMP(3), :caseId, :me, UTC_TIMESTAMP(3) FROM alerts a WHERE a.case_id = :caseId`,
-        { replacements: { label, fraudType: input.fraudType ?? null, caseId: id, me: me.id }, type: QueryTypes.INSERT, transaction: t },
-      );
+    const decision: DispositionDecision = {
+      disposition: input.disposition,
+      fraudType: input.fraudType ?? null,
+      reason: input.reason,
+      confirmedMinor: toMinor(input.amountConfirmed, exp),
+      recoveredMinor: toMinor(input.amountRecovered, exp),
+    };
+    const policy = await readSupervisionSettings(d.db, t);
+    const limit = approvalLimitMinor(policy, exp);
+    if (limit === null || Number(row.amount_at_risk_minor) <= limit) {
+      await applyDisposition(d, t, req, id, decision, { decidedBy: me.id });
+      return null;
     }
-    await d.db.sequelize.query(
-      `UPDATE cases SET status = 'closed', open_card_id = NULL, disposition = :disposition, disposition_reason = :reason, fraud_type = :fraudType,
-              amount_confirmed_minor = :confirmed, amount_recovered_minor = :recovered, closed_at = UTC_TIMESTAMP(3), closed_by = :me,
-              assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3)
-       WHERE id = :id`,
+    const [approvalId] = (await d.db.sequelize.query(
+      `INSERT INTO case_approvals (case_id, proposed_by, disposition, fraud_type, reason, amount_confirmed_minor, amount_recovered_minor, status, created_at)
+       VALUES (?, ?, ?, ?, ?, ?, ?, 'pending', UTC_TIMESTAMP(3))`,
       {
-        replacements: { disposition: input.disposition, reason: input.reason, fraudType: input.fraudType ?? null, confirmed, recovered, me: me.id, id },
-        type: QueryTypes.UPDATE,
+        replacements: [id, me.id, decision.disposition, decision.fraudType, decision.reason, decision.confirmedMinor, decision.recoveredMinor],
+        type: QueryTypes.INSERT,
         transaction: t,
       },
+    )) as unknown as [number];
+    await d.db.sequelize.query(
+      "UPDATE cases SET status = 'awaiting_approval', claimed_at = COALESCE(claimed_at, UTC_TIMESTAMP(3)), assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id",
+      { replacements: { me: me.id, id }, type: QueryTypes.UPDATE, transaction: t },
     );
     await appendAudit(
       d.db,
       {
         ...actorFromRequest(req),
-        action: 'case.disposition',
+        action: 'case.disposition_proposed',
         targetType: 'case',
         targetId: id,
         outcome: 'success',
-        details: { disposition: input.disposition, fraudType: input.fraudType ?? null, reason: input.reason, amountConfirmedMinor: confirmed, amountRecoveredMinor: recovered },
+        details: { approvalId: Number(approvalId), disposition: decision.disposition, fraudType: decision.fraudType, reason: decision.reason, approvalLimit: policy.approvalLimit },
       },
       t,
     );
+    return { id: Number(approvalId), status: 'pending' as const, limit: policy.approvalLimit! };
   });
   const after = await mustGet(d, id);
-  await changed(d, id, 'closed', after.assignee_id === null ? null : Number(after.assignee_id));
-  return { case: toSummary(after), nextCaseId: await nextCaseFor(d.db, me.id) };
+  await changed(d, id, after.status, after.assignee_id === null ? null : Number(after.assignee_id));
+  return { case: toSummary(after), nextCaseId: await nextCaseFor(d.db, me.id), approval };
 }
 
 /** The next case for a person: their own open claimed case first, else the top unassigned new one. */
