@@ -106,6 +106,9 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   });
   const limiter = new LoginLimiter(redis, config);
   const http = createServer(app);
+  // A streamed back-fill import is read as fast as it is stored: give request bodies up to an hour
+  // (Node's default cuts them at 300 s); header and idle timeouts stay short.
+  http.requestTimeout = 60 * 60_000;
   const hub = new SocketHub(http, sessionMiddleware, pp);
 
   const scoring = new ScoringQueue(config);

@@ -47,7 +47,7 @@ class FakeXhr {
 const FILE_BYTES = 2000;
 const csvFile = () => new File(['x'.repeat(FILE_BYTES)], 'history.csv', { type: 'text/csv' });
 
-function run(over: Partial<BackfillImport> & { counts?: Partial<BackfillImport['counts']> } = {}): BackfillImport {
+function run(over: Omit<Partial<BackfillImport>, 'counts'> & { counts?: Partial<BackfillImport['counts']> } = {}): BackfillImport {
   const { counts, ...rest } = over;
   return {
     id: 41,

@@ -3,10 +3,8 @@ import { QueryTypes } from 'sequelize';
 import type { Database } from '../db/database';
 import type { Config } from '../config/index';
 import { validateTransaction } from '@shared/api/transactions';
-import { featureRow } from '@shared/features/definitions';
-import { isHighRiskMcc } from '@shared/reference/mcc';
 import { normaliseTransaction } from '../ingest/normalise-transaction';
-import { storeTransactions } from '../ingest/transaction-repository';
+import { storeHistoricalBatch, type HistoricalItem } from '../backfill/store-historical';
 import { VelocityStore } from '../scoring/velocity';
 import { trainModelVersion } from '../training/train-model-version';
 import { appendAudit } from '../audit/audit-repository';
@@ -60,69 +58,23 @@ export async function seedDemoHistory(db: Database, redis: Redis, c: Config, o: 
   let chunk: SimulatedTransaction[] = [];
   const flush = async () => {
     if (chunk.length === 0) return;
-    const items = chunk.flatMap((s) => {
+    const items: HistoricalItem[] = chunk.flatMap((s) => {
       const v = validateTransaction(toIngestPayload(s), { now });
-      return v.ok ? [{ s, t: normaliseTransaction(v.value, c.PAN_HMAC_KEY) }] : [];
-    });
-    const stored = await storeTransactions(db, items.map((x) => x.t), { source: 'seed', apiKeyId: null, receivedAt: now });
-    const ids = [...stored.inserted.values()];
-    if (ids.length > 0) {
-      await db.sequelize.query("UPDATE transactions SET status = 'historical' WHERE id IN (:ids)", { replacements: { ids }, type: QueryTypes.UPDATE });
-    }
-    const fresh = items.filter((x) => stored.inserted.has(x.t.externalId));
-    const snaps = await velocity.observeMany(
-      fresh.map(({ t }) => ({
-        cardKey: t.card.panHash,
-        event: {
-          transactionId: t.externalId,
-          occurredAt: t.occurredAt,
-          amount: t.amount,
-          merchantRef: t.merchant.id,
-          merchantCountry: t.merchant.country,
-          lat: t.lat,
-          lon: t.lon,
-          deviceId: t.deviceId,
-        },
-      })),
-    );
-    const featureValues: unknown[] = [];
-    const labelValues: unknown[] = [];
-    fresh.forEach(({ s, t }, i) => {
-      const id = stored.inserted.get(t.externalId)!;
-      const row = featureRow(
-        {
-          amount: t.amount,
-          mcc: t.merchant.mcc,
-          mccHighRisk: isHighRiskMcc(t.merchant.mcc),
-          merchantCountry: t.merchant.country,
-          cardPresent: t.cardPresent,
-          channel: t.channel,
-          occurredAt: t.occurredAt,
-        },
-        snaps[i],
-      );
-      featureValues.push(id, JSON.stringify(row), now);
+      if (!v.ok) return [];
+      const t = normaliseTransaction(v.value, c.PAN_HMAC_KEY);
       const truth = s.truth;
       const reportedAt = truth.labelReportedAt ?? null;
-      if (truth.fraud && reportedAt && reportedAt <= now) {
-        labelValues.push(id, 'fraud', truth.fraudType ?? null, 'seed', reportedAt, now);
-      } else if (!truth.fraud && truth.wouldBeLabelled) {
-        labelValues.push(id, 'legitimate', null, 'seed', reportedAt ?? t.occurredAt, now);
-      }
+      // A label exists only once it would have been known: chargebacks weeks later, some legitimate ones confirmed.
+      const label =
+        truth.fraud && reportedAt && reportedAt <= now
+          ? { label: 'fraud' as const, fraudType: truth.fraudType ?? null, reportedAt }
+          : !truth.fraud && truth.wouldBeLabelled
+            ? { label: 'legitimate' as const, fraudType: null, reportedAt: reportedAt && reportedAt <= now ? reportedAt : t.occurredAt }
+            : null;
+      return [{ t, label }];
     });
-    if (fresh.length > 0) {
-      await db.sequelize.query(
-        `INSERT IGNORE INTO transaction_features (transaction_id, features, computed_at) VALUES ${fresh.map(() => '(?, ?, ?)').join(', ')}`,
-        { replacements: featureValues, type: QueryTypes.INSERT },
-      );
-    }
-    if (labelValues.length > 0) {
-      await db.sequelize.query(
-        `INSERT INTO labels (transaction_id, label, fraud_type, source, reported_at, created_at) VALUES ${Array.from({ length: labelValues.length / 6 }, () => '(?, ?, ?, ?, ?, ?)').join(', ')}`,
-        { replacements: labelValues, type: QueryTypes.INSERT },
-      );
-    }
-    rows += fresh.length;
+    const outcomes = await storeHistoricalBatch(db, velocity, items, { source: 'seed', labelSource: 'seed', receivedAt: now, createdBy: null, labelExisting: false });
+    rows += outcomes.filter((o) => o.status === 'accepted').length;
     chunk = [];
   };
 
