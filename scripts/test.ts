@@ -257,7 +257,7 @@ async function main(): Promise<number> {
       return summarise(results, false);
     }
     writeFileSync(path.join(paths.dataDir, MARKER), 'made by npm test; wiped at the start of each test run\n');
-    mkdirSync(reports, { recursive: true });
+    for (const d of [reports, path.join(paths.uploads, 'vitest'), path.join(paths.uploads, 'e2e')]) mkdirSync(d, { recursive: true });
     log(`data folder ${paths.dataDir} (fresh); logs in ${paths.logs}`);
 
     if (packages.length > 0) {
