@@ -3,7 +3,7 @@
  *
  * Steps, in order: Debian packages, private services (MariaDB with databases
  * edgecase_test and edgecase_e2e, Redis, mail catcher), type-check, lint,
- * Vitest (unit, client, integration), client build, e2e database (migrate +
+ * Vitest (all projects: unit, client, integration, reliability), client build, e2e database (migrate +
  * demo seed), e2e server + workers, Playwright. Every step runs even when an
  * earlier one failed, unless it cannot (e2e without a server, integration
  * tests without services). Then a summary table, and as the last line
@@ -44,9 +44,10 @@ const E2E_CHILDREN: AppChildSpec[] = [
   { name: 'worker', script: 'workers/src/index.ts' },
 ];
 
-const SELECTABLE = ['typecheck', 'lint', 'unit', 'client', 'integration', 'build', 'e2e'] as const;
+const SELECTABLE = ['typecheck', 'lint', 'unit', 'client', 'integration', 'reliability', 'build', 'e2e'] as const;
 type Selectable = (typeof SELECTABLE)[number];
-const VITEST_PROJECTS = ['unit', 'client', 'integration'] as const;
+/** Vitest projects (vite.config.ts). With all selected Vitest runs without a filter, so a new project is never left out. */
+const VITEST_PROJECTS = ['unit', 'client', 'integration', 'reliability'] as const;
 
 const HELP = `Usage: npm test [-- options]
 
@@ -55,9 +56,10 @@ whose last line is "N passed, N failed".
 
 Options:
   --only=a,b      run only these parts: ${SELECTABLE.join(', ')}
-                  (unit, client, integration are Vitest projects; e2e also
-                  builds the client and starts the server; integration and e2e
-                  start MariaDB/Redis, the others need no services)
+                  (unit, client, integration, reliability are Vitest
+                  projects; e2e also builds the client and starts the server;
+                  integration and e2e use the run's MariaDB/Redis, reliability
+                  starts its own; the others need no services)
   --skip=a,b      run everything except these parts
   --rebuild       build the client even if its sources did not change
   --redis-aof     run the test Redis with its append-only file on
@@ -200,7 +202,7 @@ async function main(): Promise<number> {
   const wantE2e = selected.has('e2e');
   const needServices = selected.has('integration') || wantE2e;
   const packages = [
-    ...(needServices ? ['mariadb-server', 'redis-server'] : []),
+    ...(needServices || selected.has('reliability') ? ['mariadb-server', 'redis-server'] : []),
     ...(wantE2e ? ['chromium'] : []),
     ...(vitestProjects.length > 0 ? ['python3-sklearn'] : []),
   ];
