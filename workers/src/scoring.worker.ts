@@ -10,6 +10,14 @@ import { subscribeEvents } from '../../server/src/events/event-bus';
 import { QUEUES, scoringJobSchema, type ScoringJob } from '@shared/jobs/queues';
 import { workerOptions } from './lib/worker-options';
 
+/**
+ * A scoring job takes milliseconds, so a short lock lets another worker take
+ * over the jobs of one that crashed within seconds instead of a minute (the
+ * lock is renewed every half lock while a job runs). A job that stalls more
+ * than once still retries: scoring is idempotent, so running one twice is safe.
+ */
+const SCORING_LOCKS = { lockDuration: 10_000, stalledInterval: 5_000, maxStalledCount: 5 };
+
 export async function createScoringWorker(c: Config, db: Database, concurrency = 4): Promise<{ worker: Worker<ScoringJob>; close(): Promise<void> }> {
   const redis: Redis = createRedis(c, { name: 'scoring-velocity' });
   const subscriber: Redis = createRedis(c, { name: 'scoring-events', forBullmq: true });
@@ -36,7 +44,7 @@ export async function createScoringWorker(c: Config, db: Database, concurrency =
       );
       return { scored: outcomes.length, alerted: outcomes.filter((o) => o.alerted).length };
     },
-    workerOptions(c, 'scoring', concurrency),
+    { ...workerOptions(c, 'scoring', concurrency), ...SCORING_LOCKS },
   );
   return {
     worker,

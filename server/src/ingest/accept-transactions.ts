@@ -87,11 +87,14 @@ export async function acceptTransactions(
       }
     }
     if (acceptedIds.length > 0) {
+      const job = { transactionIds: acceptedIds, batch: stored.batch };
       try {
-        await d.scoring.enqueue({ transactionIds: acceptedIds, batch: stored.batch });
+        await d.scoring.enqueue(job);
       } catch {
-        // Stored but not queued: the sweeper queues unscored rows, so nothing is lost; the caller is
-        // told to retry and its retry is answered "duplicate".
+        // Stored but not queued: queued again from here once Redis is back (and by the sweeper if this
+        // process stops first), so nothing is lost; the caller is told to retry and its retry is
+        // answered "duplicate".
+        d.scoring.enqueueLater(job);
         throw AppError.unavailable('Scoring queue unavailable; retry the same request.', 2);
       }
     }

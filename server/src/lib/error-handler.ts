@@ -11,6 +11,20 @@ interface HttpLikeError {
   message?: string;
 }
 
+/**
+ * MariaDB errors that mean the connection went away mid-request (server shut
+ * down or restarted, socket closed): SQLSTATE class 08 (connection exception),
+ * the driver's fatal flag, or ER_SERVER_SHUTDOWN (1053) / ER_CONNECTION_KILLED
+ * (1927) / CR_SERVER_GONE_ERROR (2006) / CR_SERVER_LOST (2013). A retry is
+ * safe: ingest recognises ids it already holds, and the requeue sweeper scores
+ * anything that was stored but not queued.
+ */
+function lostDatabaseConnection(err: unknown): boolean {
+  const p = (err as { parent?: { sqlState?: string; fatal?: boolean; errno?: number } })?.parent;
+  if (!p) return false;
+  return p.fatal === true || (typeof p.sqlState === 'string' && p.sqlState.startsWith('08')) || [1053, 1927, 2006, 2013].includes(p.errno ?? 0);
+}
+
 /** Maps errors thrown by middleware we use (body-parser, csrf-sync) to AppErrors. */
 function normalise(err: unknown): AppError {
   if (err instanceof AppError) return err;
@@ -29,6 +43,7 @@ function normalise(err: unknown): AppError {
   const name = (err as { name?: string })?.name ?? '';
   if (
     name.startsWith('SequelizeConnection') ||
+    lostDatabaseConnection(err) ||
     name === 'ConnectionAcquireTimeoutError' ||
     name === 'SequelizeHostNotReachableError' ||
     name === 'MaxRetriesPerRequestError' ||

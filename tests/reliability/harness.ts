@@ -1,0 +1,800 @@
+/**
+ * Fault-test and load-benchmark harness: a private stack (MariaDB, Redis, the
+ * real web server and worker entry points as child processes), a bounded load
+ * generator on loopback that records every answer per transaction id, a
+ * signed-in Socket.IO listener, and the final accounting from the database.
+ *
+ * Used by tests/reliability/*.test.ts and tests/bench/pipeline.ts. Every
+ * address is 127.0.0.1; every request loop stops by itself (count and time).
+ */
+import { randomUUID } from 'node:crypto';
+import { rmSync, writeFileSync } from 'node:fs';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { Queue, QueueEvents } from 'bullmq';
+import { QueryTypes } from 'sequelize';
+import { io as ioClient, type Socket } from 'socket.io-client';
+import { spawnChild, describeExit, type ChildHandle } from '../../scripts/services/child';
+import { startMariaDb, type MariaDbHandle } from '../../scripts/services/mariadb';
+import { startRedis, type RedisHandle } from '../../scripts/services/redis';
+import { appEnv, claimDataFolder, stackPaths, type Ports, type StackPaths } from '../../scripts/services/stack';
+import { waitForHttp } from '../../scripts/services/wait';
+import { tailFile } from '../../scripts/services/log';
+import { loadConfig, type Config } from '../../server/src/config/index';
+import { openDatabase, type Database } from '../../server/src/db/database';
+import { createMigrator } from '../../server/src/db/migrator';
+import { seedDemo } from '../../server/src/db/seed-demo';
+import { DEMO_API_KEY } from '../../server/src/demo/demo-accounts';
+import { createRedis } from '../../server/src/lib/redis';
+import { luhnCheckDigit } from '../../shared/src/card/luhn';
+import { QUEUES } from '../../shared/src/jobs/queues';
+import { freePort } from '../integration/helpers/net';
+
+export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
+export const WEB_SCRIPT = 'server/src/index.ts';
+export const WORKER_SCRIPT = 'workers/src/index.ts';
+
+export const sleep = (ms: number) => new Promise<void>((r) => setTimeout(r, ms));
+
+// ─── stack ──────────────────────────────────────────────────────────────────
+
+export interface StackOptions {
+  /** Names the data folder (`.data/<name>` unless dataDir is given), logs and the Redis prefix. */
+  name: string;
+  dataDir?: string;
+  /** Fixed ports; any left out are picked free on 127.0.0.1. */
+  ports?: Partial<Pick<Ports, 'web' | 'db' | 'redis'>>;
+  /** Worker processes: the first runs every queue (scoring, maintenance sweeper, mail...), the others scoring only. */
+  workers?: number;
+  /** Redis append-only file (default on: the fault tests restart Redis and expect its queue back). */
+  redisAppendOnly?: boolean;
+  /** MariaDB's test profile (redo log flushed once a second, no binlog). Default on. */
+  fastDb?: boolean;
+  bufferPoolMb?: number;
+  extraDbArgs?: string[];
+  /** Extra environment for every app child (e.g. SCORING_CONCURRENCY, DB_POOL_MAX). */
+  env?: Record<string, string>;
+  /** Node flags for the app children (e.g. --cpu-prof). */
+  nodeArgs?: (role: 'web' | 'worker', index: number) => string[];
+  /** How the first champion is made once the schema is in (the stack's own database connection is passed). */
+  seed: (db: Database, c: Config, stack: { redisPort: number }) => Promise<void>;
+  logLevel?: string;
+  log?: (line: string) => void;
+}
+
+export interface AppProcess {
+  name: string;
+  role: 'web' | 'worker';
+  args: string[];
+  handle: ChildHandle;
+}
+
+export interface Stack {
+  name: string;
+  baseUrl: string;
+  ports: Pick<Ports, 'web' | 'db' | 'redis' | 'smtp'>;
+  paths: StackPaths;
+  env: NodeJS.ProcessEnv;
+  config: Config;
+  mariadb: MariaDbHandle;
+  redis: RedisHandle;
+  /** The harness's own connection, for set-up and accounting. */
+  db: Database;
+  apiKey: string;
+  web: AppProcess;
+  workers: AppProcess[];
+  /** SIGKILLs worker `i` (as a crash would) and resolves once it is gone. */
+  killWorker(i: number): Promise<void>;
+  /** Starts worker `i` again (after a kill); resolves once it is running. */
+  startWorker(i: number): Promise<void>;
+  /** Processes that exited without being asked to (a crash). */
+  unexpectedExits(): string[];
+  stop(): Promise<void>;
+}
+
+function childEnvFor(o: StackOptions, paths: StackPaths, ports: Ports): NodeJS.ProcessEnv {
+  const env: NodeJS.ProcessEnv = {
+    ...process.env,
+    ...appEnv({
+      mode: 'test',
+      paths,
+      ports,
+      root: ROOT,
+      dbName: 'edgecase_stack',
+      dbUser: 'edgecase',
+      dbPassword: 'edgecase',
+      redisPrefix: `ec-${o.name}`,
+      logLevel: o.logLevel ?? 'info',
+    }),
+    ...o.env,
+  };
+  // Vitest's own markers must not reach the app children.
+  delete env.VITEST;
+  delete env.VITEST_POOL_ID;
+  delete env.VITEST_WORKER_ID;
+  delete env.NODE_OPTIONS;
+  return env;
+}
+
+/**
+ * Starts the whole stack on loopback: fresh data folder (wiped), MariaDB,
+ * Redis, migrations, demo staff and API key, the caller's seed (a champion),
+ * the web server and the workers, and waits for the health check.
+ */
+export async function startStack(o: StackOptions): Promise<Stack> {
+  const log = o.log ?? ((l: string) => console.log(`[${o.name}] ${l}`));
+  const paths = stackPaths(o.dataDir ?? path.join(ROOT, '.data', o.name));
+  const release = await claimDataFolder(paths, { wipe: true, log });
+  const ports: Ports = {
+    web: o.ports?.web ?? (await freePort()),
+    db: o.ports?.db ?? (await freePort()),
+    redis: o.ports?.redis ?? (await freePort()),
+    // No mail is sent in these runs; the port only has to be one nobody listens on.
+    smtp: await freePort(),
+  };
+  const env = childEnvFor(o, paths, ports);
+  const cleanups: (() => Promise<void>)[] = [];
+  const cleanup = async () => {
+    for (const c of cleanups.reverse()) await c().catch((e) => log(`clean-up: ${(e as Error).message}`));
+    cleanups.length = 0;
+    release();
+  };
+  try {
+    const mariadb = await startMariaDb({
+      dataDir: paths.mysql,
+      runDir: paths.run,
+      logDir: paths.logs,
+      port: ports.db,
+      databases: ['edgecase_stack'],
+      user: 'edgecase',
+      password: 'edgecase',
+      fast: o.fastDb ?? true,
+      bufferPoolMb: o.bufferPoolMb,
+      extraArgs: o.extraDbArgs,
+      log,
+    });
+    cleanups.push(() => mariadb.stop());
+    const redis = await startRedis({
+      dataDir: paths.redis,
+      runDir: paths.run,
+      logDir: paths.logs,
+      port: ports.redis,
+      appendOnly: o.redisAppendOnly ?? true,
+      log,
+    });
+    cleanups.push(() => redis.stop());
+
+    const config = loadConfig(env);
+    const db = openDatabase(config);
+    cleanups.push(() => db.close());
+    await createMigrator(db.sequelize).up();
+    await seedDemo(db, config);
+    await o.seed(db, config, { redisPort: ports.redis });
+
+    const expected = new Set<ChildHandle>();
+    const exits: string[] = [];
+    const spawnApp = (name: string, role: 'web' | 'worker', script: string, args: string[], index: number): AppProcess => {
+      const abs = path.join(ROOT, script);
+      const handle = spawnChild({
+        name,
+        command: process.execPath,
+        args: [...(o.nodeArgs?.(role, index) ?? []), '--import', 'tsx', abs, ...args],
+        cwd: ROOT,
+        env: { ...env, EDGECASE_PROCESS: name },
+        logFile: path.join(paths.logs, `${name}.log`),
+        echo: 'none',
+      });
+      // Same pid-file convention as npm start/test, so a later run cleans up after a killed one.
+      const pidFile = path.join(paths.run, `app-${name}.pid`);
+      if (handle.pid !== undefined) writeFileSync(pidFile, `${handle.pid}\n${abs}\n`);
+      void handle.exited.then((info) => {
+        rmSync(pidFile, { force: true });
+        if (!expected.has(handle)) exits.push(`${name} ${describeExit(info)}`);
+      });
+      return { name, role, args, handle };
+    };
+    const stopApp = async (p: AppProcess) => {
+      expected.add(p.handle);
+      await p.handle.stop(15_000);
+    };
+
+    const web = spawnApp('web', 'web', WEB_SCRIPT, [], 0);
+    cleanups.push(() => stopApp(web));
+    const workerCount = o.workers ?? 1;
+    const workerArgs = (i: number) => (i === 0 ? [] : ['--only=scoring']);
+    const workers: AppProcess[] = [];
+    for (let i = 0; i < workerCount; i += 1) workers.push(spawnApp(`worker-${i}`, 'worker', WORKER_SCRIPT, workerArgs(i), i));
+    cleanups.push(async () => {
+      for (const w of workers) await stopApp(w);
+    });
+    const baseUrl = `http://127.0.0.1:${ports.web}`;
+    try {
+      await waitForHttp(`${baseUrl}/api/health`, { timeoutMs: 120_000, failFast: () => exits[0] });
+      for (const w of workers) await waitForLogLine(path.join(paths.logs, `${w.name}.log`), 'workers running', 60_000, () => exits[0]);
+    } catch (e) {
+      for (const p of [web, ...workers]) log(`last lines of ${p.name}.log:\n${await tailFile(path.join(paths.logs, `${p.name}.log`), 20)}`);
+      throw e;
+    }
+    log(`stack up: web ${baseUrl}, MariaDB ${ports.db}, Redis ${ports.redis}, ${workerCount} worker process(es); logs in ${paths.logs}`);
+
+    return {
+      name: o.name,
+      baseUrl,
+      ports,
+      paths,
+      env,
+      config,
+      mariadb,
+      redis,
+      db,
+      apiKey: DEMO_API_KEY,
+      web,
+      workers,
+      async killWorker(i) {
+        const w = workers[i];
+        expected.add(w.handle);
+        w.handle.signal('SIGKILL');
+        await w.handle.exited;
+      },
+      async startWorker(i) {
+        const old = workers[i];
+        if (!old.handle.exitInfo) throw new Error(`${old.name} is still running`);
+        const logFile = path.join(paths.logs, `${old.name}.log`);
+        const mark = await countLines(logFile, 'workers running');
+        workers[i] = spawnApp(old.name, 'worker', WORKER_SCRIPT, old.args, i);
+        await waitForLogLine(logFile, 'workers running', 60_000, () => exits[0], mark + 1);
+      },
+      unexpectedExits: () => [...exits],
+      stop: cleanup,
+    };
+  } catch (e) {
+    await cleanup();
+    throw e;
+  }
+}
+
+async function countLines(file: string, needle: string): Promise<number> {
+  const { readFile } = await import('node:fs/promises');
+  const text = await readFile(file, 'utf8').catch(() => '');
+  return text.split('\n').filter((l) => l.includes(needle)).length;
+}
+
+async function waitForLogLine(file: string, needle: string, timeoutMs: number, failFast: () => string | undefined, occurrences = 1): Promise<void> {
+  const until = Date.now() + timeoutMs;
+  for (;;) {
+    if ((await countLines(file, needle)) >= occurrences) return;
+    const f = failFast();
+    if (f) throw new Error(`gave up waiting for "${needle}" in ${path.basename(file)}: ${f}`);
+    if (Date.now() > until) throw new Error(`timed out waiting for "${needle}" in ${path.basename(file)}`);
+    await sleep(200);
+  }
+}
+
+// ─── invented transactions ─────────────────────────────────────────────────
+
+/** A Luhn-valid 16-digit number under 99 (ISO/IEC 7812 major industry identifier 9: national use); never printed. */
+export function inventedPan(seed: number): string {
+  const body = `990088${String(seed).padStart(9, '0')}`;
+  return body + luhnCheckDigit(body);
+}
+
+export interface SimpleTxnOptions {
+  /** Id prefix, unique per run. */
+  tag: string;
+  /** Distinct cards the load spreads over. */
+  cards?: number;
+  /** One transaction in `alertEvery` has a large amount (the fixture champion alerts on those). */
+  alertEvery?: number;
+}
+
+/** Invented transactions with unique ids: mostly small grocery payments, every n-th a large one. */
+export function simpleTransactions(o: SimpleTxnOptions): (n: number) => Record<string, unknown> & { id: string } {
+  const cards = o.cards ?? 2_000;
+  const alertEvery = o.alertEvery ?? 20;
+  return (n) => {
+    const card = (n * 7_919) % cards;
+    return {
+      id: `${o.tag}-${n}`,
+      occurredAt: new Date().toISOString(),
+      amount: n % alertEvery === 0 ? '2750.00' : `${10 + (n % 50)}.${String(n % 100).padStart(2, '0')}`,
+      currency: 'USD',
+      card: { number: inventedPan(card), cardholderId: `rel-ch-${card}` },
+      merchant: { id: `m-${n % 40}`, name: `Invented Merchant ${n % 40}`, mcc: n % 3 === 0 ? '5812' : '5411', country: 'US' },
+      cardPresent: n % 4 !== 0,
+      channel: n % 4 === 0 ? 'ecommerce' : 'pos',
+    };
+  };
+}
+
+// ─── responses per id ───────────────────────────────────────────────────────
+
+export type Answer = 'accepted' | 'duplicate' | 'rejected' | '503' | `http-${number}` | 'error';
+
+export class ResponseLog {
+  readonly byId = new Map<string, Answer[]>();
+  readonly sentAt = new Map<string, number>();
+  readonly http = new Map<string, number>();
+  /** performance.now() of every 202 that accepted at least one transaction. */
+  readonly acceptedTimes: number[] = [];
+  /** performance.now() of every answer that was not a 202. */
+  readonly refusedTimes: number[] = [];
+  /** Milliseconds from send to answer, per request. */
+  readonly requestLatencies: number[] = [];
+
+  record(id: string, a: Answer): void {
+    const list = this.byId.get(id);
+    if (list) list.push(a);
+    else this.byId.set(id, [a]);
+  }
+
+  countHttp(key: string): void {
+    this.http.set(key, (this.http.get(key) ?? 0) + 1);
+  }
+
+  /** Ids the system said it holds (accepted, or a duplicate of something it stored). */
+  kept(): string[] {
+    return [...this.byId].filter(([, a]) => a.includes('accepted') || a.includes('duplicate')).map(([id]) => id);
+  }
+
+  accepted(): string[] {
+    return [...this.byId].filter(([, a]) => a.includes('accepted')).map(([id]) => id);
+  }
+
+  /** Ids that got at least one 503. */
+  refused(): string[] {
+    return [...this.byId].filter(([, a]) => a.includes('503')).map(([id]) => id);
+  }
+
+  /** Ids whose every answer was a refusal or a failure: the caller never learnt they were kept. */
+  neverKept(): string[] {
+    return [...this.byId].filter(([, a]) => !a.includes('accepted') && !a.includes('duplicate')).map(([id]) => id);
+  }
+}
+
+// ─── load generator ─────────────────────────────────────────────────────────
+
+export interface LoadOptions {
+  baseUrl: string;
+  apiKey: string;
+  /** `/api/v1/transactions` (default; batches of `batchSize`, a bare object when 1) or `/api/v1/decisions` (one each). */
+  path?: string;
+  /** Transactions per second offered (new ones; retries come on top). */
+  ratePerSecond: number;
+  batchSize: number;
+  /** New transactions stop after this long. */
+  seconds: number;
+  /** And after this many. */
+  maxTransactions?: number;
+  make: (n: number) => Record<string, unknown> & { id: string };
+  log: ResponseLog;
+  /** Resend what was refused (503) or failed, as an upstream system would; bounded in attempts and time. */
+  retry?: { afterMs: number; maxAttempts: number; untilMs: number };
+  /** Requests in flight at most; a tick that finds them all busy waits. */
+  maxInFlight?: number;
+  requestTimeoutMs?: number;
+  /** Called once per second with what was sent so far (fault injection hooks on it). */
+  onSecond?: (second: number) => void | Promise<void>;
+}
+
+export interface LoadSummary {
+  sent: number;
+  requests: number;
+  retries: number;
+  seconds: number;
+  /** Ids whose retries ran out while still refused. */
+  givenUp: number;
+}
+
+/**
+ * Sends invented transactions in batches at a steady rate to the ingest API
+ * and records every answer per id. Stops on its own: after `seconds` (or
+ * `maxTransactions`) for new transactions, then at `retry.untilMs` at the latest.
+ */
+export async function runLoad(o: LoadOptions): Promise<LoadSummary> {
+  const started = performance.now();
+  const interval = (o.batchSize / o.ratePerSecond) * 1000;
+  const maxInFlight = o.maxInFlight ?? 32;
+  const timeoutMs = o.requestTimeoutMs ?? 10_000;
+  const url = `${o.baseUrl}${o.path ?? '/api/v1/transactions'}`;
+  const decisions = (o.path ?? '').endsWith('/decisions');
+  let inFlight = 0;
+  let n = 0;
+  let requests = 0;
+  let retries = 0;
+  let givenUp = 0;
+  const retryQueue: { items: (Record<string, unknown> & { id: string })[]; attempt: number; notBefore: number }[] = [];
+  const pending = new Set<Promise<void>>();
+
+  const send = (items: (Record<string, unknown> & { id: string })[], attempt: number) => {
+    inFlight += 1;
+    requests += 1;
+    const body = o.batchSize === 1 ? items[0] : { transactions: items };
+    const t0 = performance.now();
+    for (const it of items) if (!o.log.sentAt.has(it.id)) o.log.sentAt.set(it.id, t0);
+    const p = (async () => {
+      let failed = false;
+      try {
+        const res = await fetch(url, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', authorization: `Bearer ${o.apiKey}` },
+          body: JSON.stringify(body),
+          signal: AbortSignal.timeout(timeoutMs),
+        });
+        const text = await res.text();
+        o.log.requestLatencies.push(performance.now() - t0);
+        o.log.countHttp(String(res.status));
+        if (decisions && res.status === 200) {
+          o.log.record(items[0].id, (JSON.parse(text) as { duplicate: boolean }).duplicate ? 'duplicate' : 'accepted');
+          o.log.acceptedTimes.push(performance.now());
+        } else if (res.status === 202) {
+          const results = (JSON.parse(text) as { results: { id: string | null; status: Answer }[] }).results;
+          results.forEach((r, i) => o.log.record(items[i].id, r.status));
+          if (results.some((r) => r.status === 'accepted')) o.log.acceptedTimes.push(performance.now());
+        } else {
+          o.log.refusedTimes.push(performance.now());
+          const a: Answer = res.status === 503 ? '503' : `http-${res.status}`;
+          for (const it of items) o.log.record(it.id, a);
+          failed = res.status === 503 || res.status >= 500;
+        }
+      } catch {
+        o.log.countHttp('error');
+        o.log.refusedTimes.push(performance.now());
+        for (const it of items) o.log.record(it.id, 'error');
+        failed = true;
+      } finally {
+        inFlight -= 1;
+      }
+      if (failed && o.retry) {
+        if (attempt + 1 < o.retry.maxAttempts) retryQueue.push({ items, attempt: attempt + 1, notBefore: performance.now() + o.retry.afterMs });
+        else givenUp += items.length;
+      }
+    })();
+    pending.add(p);
+    void p.finally(() => pending.delete(p));
+  };
+
+  const newUntil = started + o.seconds * 1000;
+  const hardUntil = started + Math.max(o.seconds * 1000, o.retry?.untilMs ?? 0);
+  const max = o.maxTransactions ?? Number.POSITIVE_INFINITY;
+  let nextTick = started;
+  let second = 0;
+  while (performance.now() < hardUntil) {
+    const now = performance.now();
+    if (now >= started + (second + 1) * 1000) {
+      second += 1;
+      await o.onSecond?.(second);
+    }
+    const wantsNew = now < newUntil && n < max;
+    const dueRetries = retryQueue.filter((r) => r.notBefore <= now);
+    if (!wantsNew && retryQueue.length === 0 && inFlight === 0) break;
+    if (inFlight >= maxInFlight) {
+      await sleep(2);
+      continue;
+    }
+    if (dueRetries.length > 0) {
+      const r = dueRetries[0];
+      retryQueue.splice(retryQueue.indexOf(r), 1);
+      retries += 1;
+      send(r.items, r.attempt);
+      continue;
+    }
+    if (wantsNew && now >= nextTick) {
+      const count = Math.min(o.batchSize, max - n);
+      const items = Array.from({ length: count }, () => o.make(n++));
+      send(items, 0);
+      nextTick += interval;
+      // Never try to catch up more than a second of backlog at once.
+      if (nextTick < now - 1000) nextTick = now;
+      continue;
+    }
+    await sleep(Math.max(1, Math.min(10, nextTick - now)));
+  }
+  await Promise.allSettled([...pending]);
+  givenUp += retryQueue.reduce((s, r) => s + r.items.length, 0);
+  return { sent: n, requests, retries, seconds: (performance.now() - started) / 1000, givenUp };
+}
+
+// ─── live alerts ────────────────────────────────────────────────────────────
+
+export interface AlertListener {
+  socket: Socket;
+  /** performance.now() of each queue:alert, by externalId (a second one is a duplicate push). */
+  received: Map<string, number[]>;
+  close(): void;
+}
+
+/** Signs in through the real routes (CSRF token, then login) and returns the session cookie. */
+export async function signIn(baseUrl: string, email: string, password: string): Promise<string> {
+  const csrfRes = await fetch(`${baseUrl}/api/auth/csrf`, { signal: AbortSignal.timeout(10_000) });
+  const cookie0 = csrfRes.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
+  const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
+  const login = await fetch(`${baseUrl}/api/auth/login`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken, cookie: cookie0 },
+    body: JSON.stringify({ email, password }),
+    signal: AbortSignal.timeout(10_000),
+  });
+  if (login.status !== 200) throw new Error(`sign-in of ${email} failed: ${login.status} ${await login.text()}`);
+  await login.arrayBuffer();
+  const fresh = login.headers.getSetCookie().map((c) => c.split(';')[0]);
+  return fresh.length > 0 ? fresh.join('; ') : cookie0;
+}
+
+/** A signed-in investigator's socket that keeps every queue:alert by the transaction's upstream id. */
+export async function listenForAlerts(baseUrl: string, email = 'investigator@demo.test', password = 'demo-password'): Promise<AlertListener> {
+  const cookie = await signIn(baseUrl, email, password);
+  const socket = ioClient(baseUrl, { transports: ['websocket'], extraHeaders: { Cookie: cookie }, forceNew: true, reconnection: true, reconnectionDelay: 500 });
+  const received = new Map<string, number[]>();
+  socket.on('queue:alert', (e: { externalId?: string }) => {
+    if (!e.externalId) return;
+    const at = performance.now();
+    const list = received.get(e.externalId);
+    if (list) list.push(at);
+    else received.set(e.externalId, [at]);
+  });
+  await new Promise<void>((resolve, reject) => {
+    const t = setTimeout(() => reject(new Error('no socket hello within 15 s')), 15_000);
+    socket.once('hello', () => {
+      clearTimeout(t);
+      resolve();
+    });
+    socket.once('connect_error', (err) => {
+      clearTimeout(t);
+      reject(err);
+    });
+  });
+  return { socket, received, close: () => socket.close() };
+}
+
+// ─── accounting ─────────────────────────────────────────────────────────────
+
+export interface Accounting {
+  sent: number;
+  accepted: number;
+  /** Transactions that got at least one 503. */
+  refused503: number;
+  /** Ids never answered accepted or duplicate (refused or failed every time). */
+  neverKept: number;
+  /** Kept ids that are scored. */
+  scored: number;
+  /** Kept ids missing from the database or still unscored at the end. */
+  lost: number;
+  /** Rows in the database that are not scored at the end (whatever their answer). */
+  unscoredInDb: number;
+  /** More than one row, score, alert or live push for one transaction, or a case counting an alert twice. */
+  duplicated: number;
+  /** Answers other than 202 and 503 (a 500, a timeout): ingest should never give those. */
+  otherFailures: number;
+  lostIds: string[];
+  duplicateDetail: Record<string, number>;
+}
+
+interface DbRow {
+  external_id: string;
+  rows: number;
+  scored: number;
+  scores: number;
+  alerts: number;
+}
+
+/** Per id, from the database: rows, scored rows, score rows and alert rows. */
+async function dbView(db: Database, tagPrefix: string): Promise<Map<string, DbRow>> {
+  const rows = await db.sequelize.query<DbRow>(
+    `SELECT t.external_id, COUNT(*) AS \`rows\`, SUM(t.status = 'scored') AS scored,
+            (SELECT COUNT(*) FROM transaction_scores s WHERE s.transaction_id = t.id) AS scores,
+            (SELECT COUNT(*) FROM alerts a WHERE a.transaction_id = t.id) AS alerts
+     FROM transactions t WHERE t.external_id LIKE :p GROUP BY t.external_id, t.id`,
+    { replacements: { p: `${tagPrefix}%` }, type: QueryTypes.SELECT },
+  );
+  const out = new Map<string, DbRow>();
+  for (const r of rows) {
+    const prev = out.get(r.external_id);
+    const row = { external_id: r.external_id, rows: Number(r.rows), scored: Number(r.scored), scores: Number(r.scores), alerts: Number(r.alerts) };
+    if (prev) {
+      prev.rows += row.rows;
+      prev.scored += row.scored;
+      prev.scores += row.scores;
+      prev.alerts += row.alerts;
+    } else out.set(r.external_id, row);
+  }
+  return out;
+}
+
+/** Waits (bounded) until every transaction of the run that is in the database is scored; returns seconds waited, or null on time-out. */
+export async function waitUntilScored(db: Database, tagPrefix: string, expectedAtLeast: number, timeoutMs: number): Promise<number | null> {
+  const t0 = performance.now();
+  for (;;) {
+    try {
+      const [r] = await db.sequelize.query<{ total: number; scored: number }>(
+        "SELECT COUNT(*) AS total, COALESCE(SUM(status = 'scored'), 0) AS scored FROM transactions WHERE external_id LIKE :p",
+        { replacements: { p: `${tagPrefix}%` }, type: QueryTypes.SELECT },
+      );
+      if (Number(r.total) >= expectedAtLeast && Number(r.scored) === Number(r.total)) return (performance.now() - t0) / 1000;
+    } catch {
+      // The database may be coming back from a restart: ask again.
+    }
+    if (performance.now() - t0 > timeoutMs) return null;
+    await sleep(250);
+  }
+}
+
+/** Every kept id in the database and scored exactly once; no alert, case count or live push twice. */
+export async function account(db: Database, tagPrefix: string, log: ResponseLog, alerts?: AlertListener): Promise<Accounting> {
+  const view = await dbView(db, tagPrefix);
+  const kept = log.kept();
+  const lostIds = kept.filter((id) => (view.get(id)?.scored ?? 0) < 1);
+  const detail: Record<string, number> = { rows: 0, scores: 0, alerts: 0, pushes: 0, caseCounts: 0 };
+  for (const r of view.values()) {
+    if (r.rows > 1) detail.rows += 1;
+    if (r.scores > 1) detail.scores += 1;
+    if (r.alerts > 1) detail.alerts += 1;
+  }
+  if (alerts) for (const times of alerts.received.values()) if (times.length > 1) detail.pushes += 1;
+  // A case's alert_count must equal its alert rows: a retried job that counted an alert twice shows here.
+  const [c] = await db.sequelize.query<{ n: number }>(
+    `SELECT COUNT(*) AS n FROM cases c WHERE c.alert_count <> (SELECT COUNT(*) FROM alerts a WHERE a.case_id = c.id)`,
+    { type: QueryTypes.SELECT },
+  );
+  detail.caseCounts = Number(c.n);
+  let otherFailures = 0;
+  for (const answers of log.byId.values()) otherFailures += answers.filter((a) => a === 'error' || a.startsWith('http-')).length;
+  return {
+    sent: log.byId.size,
+    accepted: log.accepted().length,
+    refused503: log.refused().length,
+    neverKept: log.neverKept().length,
+    scored: kept.length - lostIds.length,
+    lost: lostIds.length,
+    unscoredInDb: [...view.values()].filter((r) => r.scored < 1).length,
+    duplicated: Object.values(detail).reduce((s, v) => s + v, 0),
+    otherFailures,
+    lostIds: lostIds.slice(0, 20),
+    duplicateDetail: detail,
+  };
+}
+
+/** A small fixed-width table. */
+export function table(headers: string[], rows: (string | number)[][]): string {
+  const cells = [headers, ...rows.map((r) => r.map(String))];
+  const widths = headers.map((_, i) => Math.max(...cells.map((r) => r[i].length)));
+  const line = (r: string[]) => r.map((c, i) => (i === 0 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ');
+  return [line(cells[0]), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.slice(1).map(line)].join('\n');
+}
+
+export interface FaultRow {
+  fault: string;
+  accounting: Accounting;
+  /** Seconds from the end of the fault to the first accepted batch after it. */
+  recoverySeconds: number | null;
+  /** Seconds from the end of the load until everything kept was scored. */
+  drainSeconds: number | null;
+}
+
+export function faultTable(rows: FaultRow[]): string {
+  return table(
+    ['fault', 'sent', 'accepted', '503s', 'never kept', 'scored', 'lost', 'duplicated', 'other failures', 'recovery s', 'drain s'],
+    rows.map((r) => [
+      r.fault,
+      r.accounting.sent,
+      r.accounting.accepted,
+      r.accounting.refused503,
+      r.accounting.neverKept,
+      r.accounting.scored,
+      r.accounting.lost,
+      r.accounting.duplicated,
+      r.accounting.otherFailures,
+      r.recoverySeconds === null ? 'never' : r.recoverySeconds.toFixed(1),
+      r.drainSeconds === null ? 'timed out' : r.drainSeconds.toFixed(1),
+    ]),
+  );
+}
+
+// ─── one fault under load ───────────────────────────────────────────────────
+
+export interface FaultScenario {
+  fault: string;
+  /** Id prefix of this run's transactions. */
+  tag: string;
+  /** Second of the load at which `inject` starts (it runs beside the load, which goes on). */
+  atSecond: number;
+  /** Causes the fault and resolves once the service is back (restarted, reconnected...). */
+  inject: () => Promise<void>;
+  ratePerSecond?: number;
+  batchSize?: number;
+  seconds?: number;
+  alerts?: AlertListener;
+  drainTimeoutMs?: number;
+}
+
+export interface FaultOutcome {
+  row: FaultRow;
+  log: ResponseLog;
+  load: LoadSummary;
+  /** Seconds the fault lasted (inject start to its end). */
+  faultSeconds: number;
+}
+
+/**
+ * Runs a bounded load, injects one fault in the middle of it, resends what was
+ * refused (as an upstream would), waits for the backlog to be scored and does
+ * the accounting. Prints the one-row fault table.
+ */
+export async function runFaultScenario(stack: Stack, s: FaultScenario): Promise<FaultOutcome> {
+  const log = new ResponseLog();
+  const seconds = s.seconds ?? 16;
+  let faultStart = 0;
+  let faultEnd = 0;
+  let injected: Promise<void> | undefined;
+  const load = await runLoad({
+    baseUrl: stack.baseUrl,
+    apiKey: stack.apiKey,
+    ratePerSecond: s.ratePerSecond ?? 400,
+    batchSize: s.batchSize ?? 20,
+    seconds,
+    make: simpleTransactions({ tag: s.tag }),
+    log,
+    retry: { afterMs: 1_000, maxAttempts: 10, untilMs: seconds * 1000 + 45_000 },
+    onSecond: (sec) => {
+      if (sec !== s.atSecond) return;
+      faultStart = performance.now();
+      injected = s.inject().then(() => void (faultEnd = performance.now()));
+    },
+  });
+  await injected;
+  if (faultStart === 0) throw new Error(`the load ended before second ${s.atSecond}: the fault was never injected`);
+  const drainSeconds = await waitUntilScored(stack.db, s.tag, log.kept().length, s.drainTimeoutMs ?? 150_000);
+  // Late pushes of the last alerts.
+  await sleep(1_000);
+  const accounting = await account(stack.db, s.tag, log, s.alerts);
+  const row: FaultRow = { fault: s.fault, accounting, recoverySeconds: firstAcceptedAfter(log, faultEnd), drainSeconds };
+  console.log(`\n${faultTable([row])}`);
+  console.log(
+    `load: ${load.sent} transactions in ${load.requests} requests (${load.retries} resent), ${load.seconds.toFixed(1)} s; ` +
+      `fault lasted ${((faultEnd - faultStart) / 1000).toFixed(1)} s; answers ${JSON.stringify(Object.fromEntries(log.http))}; ` +
+      `alerts pushed ${s.alerts?.received.size ?? 'n/a'}; duplicates ${JSON.stringify(accounting.duplicateDetail)}\n`,
+  );
+  return { row, log, load, faultSeconds: (faultEnd - faultStart) / 1000 };
+}
+
+/** The scoring queue seen from outside: job counts, and a wait for a job in progress. */
+export function watchScoringQueue(stack: Stack) {
+  const connection = createRedis(stack.config, { forBullmq: true, name: 'harness' });
+  connection.on('error', () => undefined);
+  const q = new Queue(QUEUES.scoring, { connection, prefix: stack.config.REDIS_PREFIX });
+  const eventsConnection = createRedis(stack.config, { forBullmq: true, name: 'harness-events' });
+  eventsConnection.on('error', () => undefined);
+  const events = new QueueEvents(QUEUES.scoring, { connection: eventsConnection, prefix: stack.config.REDIS_PREFIX });
+  events.on('error', () => undefined);
+  let stalled = 0;
+  events.on('stalled', () => void (stalled += 1));
+  return {
+    counts: () => q.getJobCounts('waiting', 'active', 'delayed', 'failed', 'completed'),
+    /** Jobs found stalled (their worker died holding them) and put back in the queue. */
+    stalled: () => stalled,
+    /** Resolves with the active count once a job is being processed (or 0 after `timeoutMs`). */
+    async untilActive(timeoutMs: number): Promise<number> {
+      const until = performance.now() + timeoutMs;
+      while (performance.now() < until) {
+        const n = await q.getActiveCount();
+        if (n > 0) return n;
+        await sleep(5);
+      }
+      return 0;
+    },
+    async close() {
+      await events.close();
+      await q.close();
+      connection.disconnect();
+      eventsConnection.disconnect();
+    },
+  };
+}
+
+/** A tag unique to this run, for transaction ids. */
+export const runTag = (what: string) => `${what}-${randomUUID().slice(0, 8)}`;
+
+/** Seconds from `since` (performance.now()) to the first accepted answer after it. */
+export function firstAcceptedAfter(log: ResponseLog, since: number): number | null {
+  const t = log.acceptedTimes.filter((x) => x >= since).sort((a, b) => a - b)[0];
+  return t === undefined ? null : (t - since) / 1000;
+}
