@@ -40,6 +40,12 @@ import { approvalRoutes } from './approvals/routes';
 import { userRoutes } from './users/routes';
 import { apiKeyRoutes } from './api-keys/routes';
 import { auditRoutes } from './audit/routes';
+import { trainingRoutes } from './training/routes';
+import { TrainingQueue } from './training/training-queue';
+import { modelRegistryRoutes } from './model-registry/routes';
+import { driftRoutes } from './drift/routes';
+import { DriftQueue } from './drift/drift-queue';
+import { labelRoutes } from './labels/routes';
 
 export interface EdgecaseServer {
   config: Config;
@@ -114,6 +120,8 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   const scoring = new ScoringQueue(config);
   const mail = new MailQueue(config);
   const outgoing = new OutgoingEvents(db, config);
+  const training = new TrainingQueue(config);
+  const drift = new DriftQueue(config);
   const velocity = new VelocityStore(redis, config.REDIS_PREFIX);
   const models = new ActiveModels(db);
   const subscriber = createRedis(config, { name: 'web-events', forBullmq: true });
@@ -151,6 +159,10 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       ...apiKeyRoutes({ db }),
       ...auditRoutes({ db }),
       ...backfillRoutes({ db, config, velocity, hub }),
+      ...modelRegistryRoutes({ db, redis, config }),
+      ...trainingRoutes({ db, redis, config, queue: training }),
+      ...driftRoutes({ db, queue: drift }),
+      ...labelRoutes({ db, config }),
     ],
     guards,
   );
@@ -198,6 +210,8 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       await scoring.close().catch(() => undefined);
       await mail.close().catch(() => undefined);
       await outgoing.close().catch(() => undefined);
+      await training.close().catch(() => undefined);
+      await drift.close().catch(() => undefined);
       await hub.close();
       await new Promise<void>((resolve) => (http.listening ? http.close(() => resolve()) : resolve()));
       redis.disconnect();

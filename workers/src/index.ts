@@ -6,6 +6,8 @@ import { createMailWorker } from './mail.worker';
 import { createMaintenanceWorker } from './maintenance.worker';
 import { createScoringWorker } from './scoring.worker';
 import { createOutgoingWorker } from './outgoing.worker';
+import { createTrainingWorker } from './training.worker';
+import { createDriftWorker } from './drift.worker';
 
 process.env.EDGECASE_PROCESS ??= 'workers';
 
@@ -35,6 +37,16 @@ async function main() {
     const s = await createScoringWorker(c, db, Number(process.env.SCORING_CONCURRENCY ?? 4));
     workers.push(s.worker as unknown as Worker);
     closers.push(s.close);
+  }
+  // Training boosts in a worker thread; `--only=training` gives it a process of its own so scoring never waits on it.
+  for (const [name, create] of [
+    ['training', () => createTrainingWorker(c, db)],
+    ['drift', () => createDriftWorker(c, db)],
+  ] as const) {
+    if (!wants(name)) continue;
+    const w = await create();
+    workers.push(w.worker as unknown as Worker);
+    closers.push(w.close);
   }
   for (const w of workers) {
     w.on('failed', (job, err) => logger().warn({ queue: w.name, jobId: job?.id, err: err.message }, 'job failed'));

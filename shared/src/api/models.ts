@@ -107,7 +107,7 @@ export const startTrainingSchema = z
     windowDays: z.number().int().min(7).max(400).optional(),
     /** End of the window (default now); it moves back to the label-delay cut-off. */
     to: z.iso.datetime({ offset: true }).optional(),
-    rounds: z.number().int().min(5).max(2000).optional(),
+    rounds: z.number().int().min(5).max(5000).optional(),
     labelDelayDays: z.number().int().min(0).max(180).optional(),
     shrinkage: z.number().gt(0).lte(1).optional(),
     /** Registry label of the new version (default: generated from the date). */
