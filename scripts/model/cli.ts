@@ -4,7 +4,7 @@
  *   train --data FILE.csv --label COLUMN --out model.json
  *         [--rounds T] [--shrinkage NU] [--exact] [--categorical a,b] [--ignore id,ts]
  *         [--validation FILE.csv] [--patience N] [--positive-weight W] [--seed S]
- *         [--calibration-tail FRACTION] [--trace trace.csv]
+ *         [--calibration-tail FRACTION] [--trace trace.csv] [--threads N]
  *   score --model model.json --data FILE.csv --out scores.csv [--explain] [--top N] [--id COLUMN]
  *
  * Exit codes: 0 done, 2 bad input (message names the file, line and column), 1 unexpected failure.
@@ -27,6 +27,7 @@ import {
   type TrainOptionsInput,
 } from '../../shared/src/model';
 import { featureSpecs, InputError, readColumns, readCsv, readLabels, sliceSet } from './csv-input';
+import { createWorkerHistograms } from './parallel-histograms';
 
 export interface CliIo {
   out: (line: string) => void;
@@ -36,7 +37,7 @@ export interface CliIo {
 const USAGE = `Usage:
   npm run model -- train --data FILE.csv --label COLUMN --out model.json [--rounds T] [--shrinkage NU] [--exact]
                          [--categorical a,b] [--ignore id,ts] [--validation FILE.csv] [--patience N]
-                         [--positive-weight W] [--seed S] [--calibration-tail 0.2] [--trace trace.csv]
+                         [--positive-weight W] [--seed S] [--calibration-tail 0.2] [--trace trace.csv] [--threads N]
   npm run model -- score --model model.json --data FILE.csv --out scores.csv [--explain] [--top 3] [--id COLUMN]`;
 
 const list = (s: string | undefined) => (s ? s.split(',').map((x) => x.trim()).filter(Boolean) : []);
@@ -66,6 +67,7 @@ function train(args: string[], io: CliIo): number {
       seed: { type: 'string' },
       'calibration-tail': { type: 'string' },
       trace: { type: 'string' },
+      threads: { type: 'string' },
     },
     strict: true,
   });
@@ -108,7 +110,10 @@ function train(args: string[], io: CliIo): number {
     options.earlyStopping = { patience: num('patience', values.patience) };
   }
   const t0 = performance.now();
-  const { model, trace } = trainModel({ features: specs, ...trainSet, validation }, options);
+  const threads = num('threads', values.threads) ?? 1;
+  if (!(Number.isInteger(threads) && threads >= 1)) throw new InputError('--threads must be a whole number >= 1');
+  const hooks = threads > 1 ? { histograms: createWorkerHistograms(threads) } : undefined;
+  const { model, trace } = trainModel({ features: specs, ...trainSet, validation }, options, hooks);
   const seconds = (performance.now() - t0) / 1000;
   const compiled = compileModel(model);
   const calF = compiled.scoreColumns(calibrationSet.columns);

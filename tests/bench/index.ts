@@ -4,6 +4,7 @@
  */
 const SUBCOMMANDS: Record<string, () => Promise<{ run: (argv: string[]) => Promise<void> }>> = {
   train: () => import('./train'),
+  pipeline: () => import('./pipeline'),
 };
 
 async function main(): Promise<void> {

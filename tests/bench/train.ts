@@ -22,6 +22,7 @@ import { join, resolve } from 'node:path';
 import { parseArgs } from 'node:util';
 import { applyBinning, compileModel, fitBinning, rocAuc, trainModel } from '../../shared/src/model';
 import type { FeatureColumns, FeatureSpec } from '../../shared/src/model/types';
+import { createWorkerHistograms } from '../../scripts/model/parallel-histograms';
 import { syntheticFraudSet } from '../../scripts/model/synthetic';
 
 const ROOT = resolve(import.meta.dirname, '../..');
@@ -94,7 +95,7 @@ function resetPeak(): number {
 }
 
 /** Child: train ours on the first `rows` training rows and print figures as one JSON line. */
-function childOurs(dir: string, rounds: number, rows: number): void {
+function childOurs(dir: string, rounds: number, rows: number, threads: number): void {
   const meta = JSON.parse(readFileSync(join(dir, 'meta.json'), 'utf8')) as Meta;
   const train = readSet(dir, 'train', meta, rows);
   const test = readSet(dir, 'test', meta, meta.test_rows);
@@ -106,7 +107,8 @@ function childOurs(dir: string, rounds: number, rows: number): void {
   const base = resetPeak();
   const cpu0 = process.cpuUsage();
   t0 = performance.now();
-  const { model, trace } = trainModel({ features: meta.specs, ...train }, { rounds });
+  const hooks = threads > 1 ? { histograms: createWorkerHistograms(threads) } : undefined;
+  const { model, trace } = trainModel({ features: meta.specs, ...train }, { rounds }, hooks);
   const fitS = (performance.now() - t0) / 1000;
   const cpu = process.cpuUsage(cpu0);
   const peakMb = (statusKb('VmHWM') - base) / 1024;
@@ -122,7 +124,7 @@ function childOurs(dir: string, rounds: number, rows: number): void {
     which: 'ours',
     rows,
     rounds: trace.length,
-    threads: 1,
+    threads,
     fit_s: fitS,
     ms_per_round: ((fitS - binningS) * 1000) / trace.length,
     cpu_ms_per_round: ((cpu.user + cpu.system) / 1000 - binningS * 1000) / trace.length,
@@ -173,12 +175,13 @@ export async function run(argv: string[]): Promise<void> {
       child: { type: 'string' },
       dir: { type: 'string' },
       'train-rows': { type: 'string' },
+      // threads: XGBoost's nthread, and ours with worker_threads when > 1
     },
     strict: true,
   });
   const rounds = Number(values.rounds);
   if (values.child === 'ours') {
-    childOurs(values.dir!, rounds, Number(values['train-rows']));
+    childOurs(values.dir!, rounds, Number(values['train-rows']), Number(values.threads));
     return;
   }
   const rows = Number(values.rows);
@@ -209,12 +212,14 @@ export async function run(argv: string[]): Promise<void> {
     console.log(`${specs.length} features, ${((100 * fraud) / rows).toFixed(2)}% fraud; ${rounds} rounds; ${threads} thread(s) for XGBoost; median of ${repeat}`);
 
     const tsx = join(ROOT, 'node_modules/.bin/tsx');
-    const ours = (n: number) => runChild(tsx, ['tests/bench/index.ts', 'train', '--child', 'ours', '--dir', dir, '--rounds', String(rounds), '--train-rows', String(n)]);
+    const ours = (n: number, th = 1) =>
+      runChild(tsx, ['tests/bench/index.ts', 'train', '--child', 'ours', '--dir', dir, '--rounds', String(rounds), '--train-rows', String(n), '--threads', String(th)]);
     const py = (which: string, n: number) =>
       runChild(PYTHON, [join(ROOT, 'tests/reference/bench_python.py'), which, dir, String(rounds), String(threads), String(n)]);
-    const runs: Record<string, Figures[]> = { ours: [], xgboost: [], oursSmall: [], sklearn: [] };
+    const runs: Record<string, Figures[]> = { ours: [], oursThreads: [], xgboost: [], oursSmall: [], sklearn: [] };
     for (let r = 0; r < repeat; r++) {
       runs.ours.push(ours(rows));
+      if (threads > 1) runs.oursThreads.push(ours(rows, threads));
       if (!values['skip-xgboost']) runs.xgboost.push(py('xgboost', rows));
       if (!values['skip-sklearn']) {
         runs.oursSmall.push(ours(skRows));
@@ -224,7 +229,8 @@ export async function run(argv: string[]): Promise<void> {
     }
     const m = Object.fromEntries(Object.entries(runs).filter(([, v]) => v.length).map(([k, v]) => [k, medianFigures(v)])) as Record<string, Figures>;
     const rowsOut = [
-      ['ours', m.ours],
+      ['ours (one thread)', m.ours],
+      [`ours (${threads} threads, worker_threads)`, m.oursThreads],
       ['xgboost (hist, depth 1)', m.xgboost],
       [`ours on ${fmtInt(skRows)} rows`, m.oursSmall],
       [`sklearn AdaBoost SAMME on ${fmtInt(skRows)} rows`, m.sklearn],
@@ -250,7 +256,8 @@ export async function run(argv: string[]): Promise<void> {
     console.log('');
     console.log('Ratios, pair by pair (> 1 means ours is faster / larger):');
     if (m.xgboost) {
-      console.log(`  XGBoost / ours, ms per round:        ${fmt(m.xgboost.ms_per_round / m.ours.ms_per_round)}  (goal >= 2)`);
+      const same = m.oursThreads ?? m.ours;
+      console.log(`  XGBoost / ours, ms per round, same threads (${same.threads}): ${fmt(m.xgboost.ms_per_round / same.ms_per_round)}  (goal >= 2)`);
       console.log(`  XGBoost / ours, fit seconds:         ${fmt(m.xgboost.fit_s / m.ours.fit_s)}`);
       console.log(`  ours - XGBoost, held-out AUC:        ${fmt(m.ours.auc - m.xgboost.auc, 4)}  (goal >= -0.003)`);
       console.log(`  ours / XGBoost, scoring rows/s:      ${fmt(m.ours.score_rows_per_s / m.xgboost.score_rows_per_s)}`);

@@ -213,10 +213,13 @@ export function fitBinning(columns: FeatureColumns, specs: FeatureSpec[], option
   return { mode: o.exact ? 'exact' : 'quantile', maxBins: o.maxBins, features };
 }
 
-function allocCodes(nCodes: number, n: number): CodeArray {
-  if (nCodes <= 256) return new Uint8Array(n);
-  if (nCodes <= 65536) return new Uint16Array(n);
-  return new Uint32Array(n);
+/** Allocator of the memory behind code arrays (e.g. SharedArrayBuffer for worker threads). */
+export type Allocate = (bytes: number) => ArrayBufferLike;
+
+function allocCodes(nCodes: number, n: number, alloc?: Allocate): CodeArray {
+  if (nCodes <= 256) return alloc ? new Uint8Array(alloc(n) as ArrayBuffer) : new Uint8Array(n);
+  if (nCodes <= 65536) return alloc ? new Uint16Array(alloc(2 * n) as ArrayBuffer) : new Uint16Array(n);
+  return alloc ? new Uint32Array(alloc(4 * n) as ArrayBuffer) : new Uint32Array(n);
 }
 
 /** Code of one numeric value: #cuts below it, or the missing code. */
@@ -236,10 +239,10 @@ export function numericCode(cuts: ArrayLike<number>, v: number): number {
  * Codes of one column. `order` (optional) is a row permutation: output row j
  * reads input row order[j] (the trainer groups rows by class this way).
  */
-export function binColumn(bins: FeatureBins, col: NumericColumn | CategoricalColumn, order?: Int32Array): CodeArray {
+export function binColumn(bins: FeatureBins, col: NumericColumn | CategoricalColumn, order?: Int32Array, alloc?: Allocate): CodeArray {
   const n = order ? order.length : col.length;
   const nCodes = codeCount(bins);
-  const out = allocCodes(nCodes, n);
+  const out = allocCodes(nCodes, n, alloc);
   if (bins.kind === 'numeric') {
     if (!isNumericColumn(col)) throw new TrainingError('bad-data', `Feature "${bins.name}" is numeric: its column must be a Float64Array`);
     const K = bins.cuts.length;
@@ -291,10 +294,10 @@ export function categoryIndex(bins: CategoricalFeatureBins): Map<string, number>
 }
 
 /** Codes of every feature, in binning order. */
-export function applyBinning(binning: Binning, columns: FeatureColumns, order?: Int32Array): CodeArray[] {
+export function applyBinning(binning: Binning, columns: FeatureColumns, order?: Int32Array, alloc?: Allocate): CodeArray[] {
   return binning.features.map((b) => {
     const col = columns[b.name];
     if (col === undefined) throw new TrainingError('bad-data', `Feature "${b.name}" has no column`);
-    return binColumn(b, col, order);
+    return binColumn(b, col, order, alloc);
   });
 }

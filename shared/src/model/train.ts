@@ -41,6 +41,7 @@
  */
 import { applyBinning, codeCount, fitBinning, type Binning } from './binning';
 import { TrainingError } from './errors';
+import { addSmallSide, buildHistogram, type HistogramExecutor } from './kernels';
 import type { Model, Stump, TrainingSummary } from './model-schema';
 import { MODEL_FORMAT, MODEL_SCHEMA_VERSION } from './model-schema';
 import { parseTrainOptions, type TrainOptions, type TrainOptionsInput } from './options';
@@ -96,6 +97,11 @@ export interface TrainResult {
 export interface TrainHooks {
   onRound?(t: RoundTrace): void;
   shouldStop?(): boolean;
+  /**
+   * Optional: runs part of the histogram work on other threads. Training is
+   * identical with or without it (each feature's histogram is built by one thread).
+   */
+  histograms?: HistogramExecutor;
 }
 
 interface Candidate {
@@ -188,9 +194,15 @@ export function trainModel(data: TrainingData, optionsInput?: TrainOptionsInput,
     let b = nNeg;
     for (let i = 0; i < n; i++) order[data.labels[i] === 1 ? b++ : a++] = i;
   }
-  const codes = applyBinning(binning, data.columns, order);
+  const alloc = hooks?.histograms ? (bytes: number) => hooks.histograms!.allocate(bytes) : undefined;
+  const codes = applyBinning(binning, data.columns, order, alloc);
   const vCodes = val ? applyBinning(binning, val.columns) : null;
-  const core = boost(binning, codes, nNeg, n, vCodes, val ? val.labels : null, opts, hooks);
+  let core: BoostResult;
+  try {
+    core = boost(binning, codes, nNeg, n, vCodes, val ? val.labels : null, opts, hooks);
+  } finally {
+    hooks?.histograms?.detach();
+  }
 
   const model = buildModel(binning, features, core, opts, {
     nTrain: n,
@@ -255,36 +267,6 @@ function describe(binning: Binning, c: Candidate) {
 // Hot loops, kept as small top-level functions so the JIT sees one array type
 // each (Uint8Array codes in quantile mode) and optimises them in isolation.
 
-/** Per-class histogram of stored weights for one feature: H[code] (legitimate), H[nC + code] (fraud). */
-function buildHistogram(
-  col: CodeArray,
-  w: Float64Array,
-  nNeg: number,
-  n: number,
-  H: Float64Array,
-  nC: number,
-  tmp: Float64Array,
-  stride: number,
-): void {
-  // Four partial histograms, `stride` (>= 256) apart, break the store-to-load chain on runs of equal codes.
-  const o1 = stride;
-  const o2 = 2 * stride;
-  const o3 = 3 * stride;
-  tmp.fill(0, 0, o3 + nC);
-  let i = 0;
-  const e = nNeg - 3;
-  for (; i < e; i += 4) {
-    tmp[col[i]] += w[i];
-    tmp[o1 + col[i + 1]] += w[i + 1];
-    tmp[o2 + col[i + 2]] += w[i + 2];
-    tmp[o3 + col[i + 3]] += w[i + 3];
-  }
-  for (; i < nNeg; i++) tmp[col[i]] += w[i];
-  for (let b = 0; b < nC; b++) H[b] = tmp[b] + tmp[o1 + b] + tmp[o2 + b] + tmp[o3 + b];
-  for (let b = nC; b < 2 * nC; b++) H[b] = 0;
-  for (i = nNeg; i < n; i++) H[nC + col[i]] += w[i];
-}
-
 /**
  * One pass over the chosen column: F_i += alpha h(x_i), count training errors,
  * collect the rows on the small side into idx. Returns [m, mNeg, errors] in out.
@@ -341,46 +323,6 @@ function rescaleSmall(idx: Int32Array, w: Float64Array, delta: Float64Array, m: 
   }
 }
 
-/**
- * H_new = H_old + (ratio_y - 1) H_small for one feature. Legitimate rows go
- * through four partial histograms (tmp, `stride` apart) so runs of equal
- * codes do not chain the add latency; the partial copies sit at least 256
- * slots apart because copies a few slots apart measured three times slower
- * (the adds of neighbouring copies still serialise). Fraud rows are few and
- * go straight in.
- */
-function addSmallSide(
-  H: Float64Array,
-  col: CodeArray,
-  idx: Int32Array,
-  delta: Float64Array,
-  m: number,
-  mNeg: number,
-  off: number,
-  tmp: Float64Array,
-  stride: number,
-): void {
-  if (mNeg >= 64) {
-    const o1 = stride;
-    const o2 = 2 * stride;
-    const o3 = 3 * stride;
-    tmp.fill(0, 0, o3 + off);
-    let j = 0;
-    const e = mNeg - 3;
-    for (; j < e; j += 4) {
-      tmp[col[idx[j]]] += delta[j];
-      tmp[o1 + col[idx[j + 1]]] += delta[j + 1];
-      tmp[o2 + col[idx[j + 2]]] += delta[j + 2];
-      tmp[o3 + col[idx[j + 3]]] += delta[j + 3];
-    }
-    for (; j < mNeg; j++) tmp[col[idx[j]]] += delta[j];
-    for (let b = 0; b < off; b++) H[b] += tmp[b] + tmp[o1 + b] + tmp[o2 + b] + tmp[o3 + b];
-  } else {
-    for (let j = 0; j < mNeg; j++) H[col[idx[j]]] += delta[j];
-  }
-  for (let j = mNeg; j < m; j++) H[off + col[idx[j]]] += delta[j];
-}
-
 function scaleRange(w: Float64Array, from: number, to: number, g: number): void {
   for (let i = from; i < to; i++) w[i] *= g;
 }
@@ -412,16 +354,23 @@ function boost(
   const totalStart = cN * nNeg + cP * nPos;
   let gN = cN / totalStart;
   let gP = cP / totalStart;
-  const w = new Float64Array(n).fill(1);
+  // Arrays other threads read or write come from the executor's allocator (shared memory).
+  const exec = hooks?.histograms;
+  const f64 = (len: number) => (exec ? new Float64Array(exec.allocate(8 * len) as ArrayBuffer) : new Float64Array(len));
+  const w = f64(n).fill(1);
   const Ft = new Float64Array(n);
-  const idx = new Int32Array(n);
-  const delta = new Float64Array(n);
-  const hist = nCodes.map((nC) => new Float64Array(2 * nC));
+  const idx = exec ? new Int32Array(exec.allocate(4 * n) as ArrayBuffer) : new Int32Array(n);
+  const delta = f64(n);
+  const hist = nCodes.map((nC) => f64(2 * nC));
 
   const stride = Math.max(256, ...nCodes);
   const tmp = new Float64Array(4 * stride);
+  const allFeatures = Array.from({ length: F }, (_, f) => f);
+  const local = exec ? exec.attach({ codes, hist, nCodes, w, idx, delta, nNeg, n, stride }) : allFeatures;
   const rebuild = () => {
-    for (let f = 0; f < F; f++) buildHistogram(codes[f], w, nNeg, n, hist[f], nCodes[f], tmp, stride);
+    exec?.begin('rebuild', 0, 0);
+    for (const f of local) buildHistogram(codes[f], w, nNeg, n, hist[f], nCodes[f], tmp, stride);
+    exec?.end();
   };
   const absorbScales = () => {
     scaleRange(w, 0, nNeg, gN);
@@ -576,7 +525,9 @@ function boost(
       absorbScales();
       rebuild();
     } else {
-      for (let f = 0; f < F; f++) addSmallSide(hist[f], codes[f], idx, delta, m, mNeg, nCodes[f], tmp, stride);
+      exec?.begin('update', m, mNeg);
+      for (const f of local) addSmallSide(hist[f], codes[f], idx, delta, m, mNeg, nCodes[f], tmp, stride);
+      exec?.end();
     }
     if (!Number.isFinite(gP) || !Number.isFinite(gN) || !(gP > 0) || !(gN > 0)) {
       throw new TrainingError('overflow', `Class weight scales overflowed at round ${t}; try shrinkage < 1`);
