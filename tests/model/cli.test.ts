@@ -43,6 +43,30 @@ describe('model CLI', () => {
     expect(first.split(',')[0]).toBe('0');
   }, 60_000);
 
+  it('uses --validation for early stopping and calibration, and writes the round trace', () => {
+    const d = sklearnAdaBoostReference(1).data;
+    const header = [...d.features, 'benign'].map((h) => JSON.stringify(h)).join(',');
+    const rows = d.target.map((y, i) => [...d.columns.map((c) => c[i]), y].join(','));
+    // Even rows train, odd rows validate (UCI breast cancer as scikit-learn ships it).
+    const train = writeCsv('bc-train.csv', [header, ...rows.filter((_, i) => i % 2 === 0)].join('\n'));
+    const valid = writeCsv('bc-valid.csv', [header, ...rows.filter((_, i) => i % 2 === 1)].join('\n'));
+    const model = join(t.dir, 'bc-val-model.json');
+    const trace = join(t.dir, 'bc-trace.csv');
+    const q = quiet();
+    const code = runCli(
+      ['train', '--data', train, '--label', 'benign', '--validation', valid, '--patience', '10', '--rounds', '300', '--exact', '--trace', trace, '--out', model],
+      q.io,
+    );
+    expect(code).toBe(0);
+    const m = parseModel(readFileSync(model, 'utf8'));
+    expect(m.calibration?.fittedOn).toBe('validation');
+    expect(m.training.stoppedBy).toBe('early-stopping');
+    expect(q.lines.join('\n')).toMatch(/validation AUC 0\.\d{4}/);
+    const traceLines = readFileSync(trace, 'utf8').trim().split('\n');
+    expect(traceLines[0]).toMatch(/^round,featureIndex,feature,/);
+    expect(traceLines).toHaveLength(m.training.roundsRun + 1);
+  }, 60_000);
+
   const bad: [string, string, string[], RegExp][] = [
     ['unknown label column', 'a,b\n1,0\n2,1\n', ['--label', 'fraud'], /unknown label column "fraud"/],
     ['non-numeric cell', 'a,b,y\n1,2,0\n3,x7,1\n', ['--label', 'y'], /line 3, column "b": "x7" is not a number/],
