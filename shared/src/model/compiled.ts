@@ -111,15 +111,61 @@ function addNumericSteps(
     }
     return;
   }
-  for (let r = 0; r < n; r++) {
-    const v = col[r];
-    if (v !== v) {
-      out[r] += miss;
-      continue;
+  const c = cuts;
+  const b = base;
+  // Unrolled for the common table sizes (most features use few thresholds).
+  if (P === 2) {
+    for (let r = 0; r < n; r++) {
+      const v = col[r];
+      out[r] += v !== v ? miss : values[b + +(c[b] < v)];
     }
-    let p = 0;
-    for (let step = P >> 1; step > 0; step >>= 1) p += +(cuts[base + p + step - 1] < v) * step;
-    out[r] += values[base + p];
+  } else if (P === 4) {
+    for (let r = 0; r < n; r++) {
+      const v = col[r];
+      if (v !== v) {
+        out[r] += miss;
+        continue;
+      }
+      let p = +(c[b + 1] < v) << 1;
+      p += +(c[b + p] < v);
+      out[r] += values[b + p];
+    }
+  } else if (P === 8) {
+    for (let r = 0; r < n; r++) {
+      const v = col[r];
+      if (v !== v) {
+        out[r] += miss;
+        continue;
+      }
+      let p = +(c[b + 3] < v) << 2;
+      p += +(c[b + p + 1] < v) << 1;
+      p += +(c[b + p] < v);
+      out[r] += values[b + p];
+    }
+  } else if (P === 16) {
+    for (let r = 0; r < n; r++) {
+      const v = col[r];
+      if (v !== v) {
+        out[r] += miss;
+        continue;
+      }
+      let p = +(c[b + 7] < v) << 3;
+      p += +(c[b + p + 3] < v) << 2;
+      p += +(c[b + p + 1] < v) << 1;
+      p += +(c[b + p] < v);
+      out[r] += values[b + p];
+    }
+  } else {
+    for (let r = 0; r < n; r++) {
+      const v = col[r];
+      if (v !== v) {
+        out[r] += miss;
+        continue;
+      }
+      let p = 0;
+      for (let step = P >> 1; step > 0; step >>= 1) p += +(c[b + p + step - 1] < v) * step;
+      out[r] += values[b + p];
+    }
   }
 }
 
