@@ -40,11 +40,16 @@ import {
   type Services,
 } from './services/stack';
 import { waitForHttp } from './services/wait';
+import { startWebhookCatcher, type WebhookCatcherHandle } from './services/webhook-catcher';
 
 /** The app processes, one line each; the first one is the web server whose health is awaited. */
 const CHILDREN: AppChildSpec[] = [
   { name: 'web', script: 'server/src/index.ts' },
-  { name: 'worker', script: 'workers/src/index.ts' },
+  { name: 'worker', script: 'workers/src/index.ts', args: ['--only=scoring,mail,outgoing,maintenance,drift'] },
+  // Training boosts for minutes at a time: a process of its own, so scoring never waits on it.
+  { name: 'training', script: 'workers/src/index.ts', args: ['--only=training'] },
+  // Invented live traffic through the real ingest API (pause it or change its rate on the Admin screen).
+  { name: 'feed', script: 'scripts/demo-feed.ts' },
 ];
 
 const DEMO_ACCOUNTS = ['investigator@demo.test', 'supervisor@demo.test', 'scientist@demo.test', 'admin@demo.test'];
@@ -121,6 +126,7 @@ async function main(): Promise<number> {
   let release: (() => void) | undefined;
   let services: Services | undefined;
   let children: AppChild[] = [];
+  let upstream: WebhookCatcherHandle | undefined;
   let stopping = false;
   try {
     await ensureDebianPackages(['mariadb-server', 'redis-server'], log);
@@ -158,6 +164,14 @@ async function main(): Promise<number> {
     await buildClientIfNeeded({ root, force: argv.includes('--rebuild'), log, logFile: path.join(paths.logs, 'vite-build.log'), signal });
     checkpoint();
 
+    // The demo's stand-in for the issuer's card system receives card blocks and unblocks.
+    upstream = await startWebhookCatcher({
+      dir: path.join(paths.dataDir, 'upstream-events'),
+      port: 0,
+      secret: env.UPSTREAM_WEBHOOK_SECRET || 'edgecase-demo-webhook-secret',
+      log,
+    });
+    env.UPSTREAM_WEBHOOK_URL = upstream.url;
     children = startAppChildren(CHILDREN, { root, paths, env, echo: 'prefix' });
     for (const c of children) {
       void c.handle.exited.then((info) => {
@@ -194,7 +208,7 @@ async function main(): Promise<number> {
         ...DEMO_ACCOUNTS.map((a) => `    ${a}`),
         '',
         `  Web ${ports.web} · MariaDB 127.0.0.1:${ports.db} (database ${dbName}) · Redis 127.0.0.1:${ports.redis} · SMTP 127.0.0.1:${ports.smtp}`,
-        `  Data folder ${paths.dataDir} (logs in logs/, caught mail in mail/)`,
+        `  Data folder ${paths.dataDir} (logs in logs/, caught mail in mail/, card-system events in upstream-events/)`,
         '  Ctrl-C stops everything; the data stays for the next run.',
         line,
         '',
@@ -209,6 +223,7 @@ async function main(): Promise<number> {
   } finally {
     stopping = true;
     await stopAppChildren(children, log);
+    await upstream?.stop().catch(() => undefined);
     if (services) {
       log('stopping services');
       await services.stop();

@@ -196,7 +196,13 @@ async function main(): Promise<number> {
     UPLOAD_DIR: path.join(paths.uploads, uploads),
   });
   const vitestEnv = envFor('edgecase_test', 'edgecase_test', 'vitest');
-  const e2eEnv = { ...envFor('edgecase_e2e', 'edgecase_e2e', 'e2e'), E2E_BASE_URL: `http://127.0.0.1:${ports.web}` };
+  const e2eEnv = {
+    ...envFor('edgecase_e2e', 'edgecase_e2e', 'e2e'),
+    E2E_BASE_URL: `http://127.0.0.1:${ports.web}`,
+    // A smaller invented history than the demo's keeps the e2e seed (and its first training run) short.
+    DEMO_HISTORY_DAYS: process.env.DEMO_HISTORY_DAYS || '35',
+    DEMO_CARDHOLDERS: process.env.DEMO_CARDHOLDERS || '400',
+  };
 
   const vitestProjects = VITEST_PROJECTS.filter((p) => selected.has(p));
   const wantE2e = selected.has('e2e');
@@ -204,7 +210,8 @@ async function main(): Promise<number> {
   const packages = [
     ...(needServices || selected.has('reliability') ? ['mariadb-server', 'redis-server'] : []),
     ...(wantE2e ? ['chromium'] : []),
-    ...(vitestProjects.length > 0 ? ['python3-sklearn'] : []),
+    // Reference libraries the model and ingest-contract tests check against.
+    ...(vitestProjects.length > 0 ? ['python3-sklearn', 'python3-babel', 'iso-codes'] : []),
   ];
 
   const signal = onStopSignals(() => undefined, log);
