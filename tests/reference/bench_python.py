@@ -64,11 +64,22 @@ def main():
         t0 = time.perf_counter()
         dtrain = xgb.DMatrix(X, label=y, nthread=threads)
         out["prepare_s"] = time.perf_counter() - t0
+        class Stamps(xgb.callback.TrainingCallback):
+            def __init__(self):
+                self.t = []
+
+            def after_iteration(self, model, epoch, evals_log):
+                self.t.append(time.perf_counter())
+                return False
+
+        stamps = Stamps()
         base = reset_peak()
         params = {"tree_method": "hist", "max_depth": 1, "objective": "binary:logistic", "nthread": threads, "max_bin": 256}
         t0 = time.perf_counter()
-        booster = xgb.train(params, dtrain, num_boost_round=rounds)
+        booster = xgb.train(params, dtrain, num_boost_round=rounds, callbacks=[stamps])
         out["fit_s"] = time.perf_counter() - t0
+        # steady-state round time (the first round also builds the quantile sketch)
+        out["ms_per_round"] = 1000 * (stamps.t[-1] - stamps.t[0]) / max(1, len(stamps.t) - 1)
         out["peak_mb"] = peak_mb(base)
         dtest = xgb.DMatrix(Xt, nthread=threads)
         t0 = time.perf_counter()
@@ -92,7 +103,8 @@ def main():
         s = clf.decision_function(Xt)
         out["score_rows_per_s"] = len(yt) / (time.perf_counter() - t0)
         out["auc"] = float(roc_auc_score(yt, s))
-    out["ms_per_round"] = 1000 * out["fit_s"] / max(1, out["rounds"])
+    if "ms_per_round" not in out:
+        out["ms_per_round"] = 1000 * out["fit_s"] / max(1, out["rounds"])
     print(json.dumps(out))
 
 

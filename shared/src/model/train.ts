@@ -327,6 +327,123 @@ function scaleRange(w: Float64Array, from: number, to: number, g: number): void 
   for (let i = from; i < to; i++) w[i] *= g;
 }
 
+/** Best candidate so far in a round's search (mutated in place: no allocation per candidate). */
+interface SearchState {
+  bestAbs: number;
+  found: boolean;
+  any: boolean;
+  f: number;
+  k: number;
+  missingRight: boolean;
+  polarity: 1 | -1;
+}
+
+/**
+ * Scans every stump of one feature (see the tie-break rule in the module doc)
+ * and updates `st`. r = s (2 S_right - T) / W with S_right the sum of d_i y_i on
+ * the right side, from cumulative sums of the per-class histograms in true
+ * units (g_+ H_+ - g_- H_-). Returns W, the feature's total true weight.
+ */
+function searchFeature(
+  H: Float64Array,
+  nC: number,
+  cnt: Int32Array,
+  numeric: boolean,
+  f: number,
+  gP: number,
+  gN: number,
+  n: number,
+  st: SearchState,
+): number {
+  let T = 0;
+  let W = 0;
+  for (let b = 0; b < nC; b++) {
+    const p = gP * H[nC + b];
+    const q = gN * H[b];
+    T += p - q;
+    W += p + q;
+  }
+  if (!(W > 0) || !Number.isFinite(W)) return W;
+  const tol = TIE_TOLERANCE * W;
+  const startRaw = st.bestAbs * W;
+  let bestRaw = startRaw;
+  if (numeric) {
+    const miss = nC - 1;
+    const K = nC - 2; // number of cuts; value bins 0..K
+    const sMiss = gP * H[nC + miss] - gN * H[miss];
+    const cMiss = cnt[miss];
+    const tVal = T - sMiss;
+    let left = 0;
+    let nLeft = 0;
+    for (let k = 0; k < K; k++) {
+      left += gP * H[nC + k] - gN * H[k];
+      nLeft += cnt[k];
+      const sRight = tVal - left;
+      const nRight = n - cMiss - nLeft;
+      if (nRight !== 0 && nRight !== n) {
+        st.any = true;
+        const raw = 2 * sRight - T;
+        const abs = raw < 0 ? -raw : raw;
+        if (abs > bestRaw + tol) {
+          bestRaw = abs;
+          st.found = true;
+          st.f = f;
+          st.k = k;
+          st.missingRight = false;
+          st.polarity = raw < 0 ? -1 : 1;
+        }
+      }
+      if (cMiss > 0) {
+        const nR = nRight + cMiss;
+        if (nR !== 0 && nR !== n) {
+          st.any = true;
+          const raw = 2 * (sRight + sMiss) - T;
+          const abs = raw < 0 ? -raw : raw;
+          if (abs > bestRaw + tol) {
+            bestRaw = abs;
+            st.found = true;
+            st.f = f;
+            st.k = k;
+            st.missingRight = true;
+            st.polarity = raw < 0 ? -1 : 1;
+          }
+        }
+      }
+    }
+    if (cMiss > 0 && cMiss !== n) {
+      st.any = true;
+      const raw = 2 * sMiss - T;
+      const abs = raw < 0 ? -raw : raw;
+      if (abs > bestRaw + tol) {
+        bestRaw = abs;
+        st.found = true;
+        st.f = f;
+        st.k = K;
+        st.missingRight = true;
+        st.polarity = raw < 0 ? -1 : 1;
+      }
+    }
+  } else {
+    for (let c = 0; c < nC; c++) {
+      const nRight = cnt[c];
+      if (nRight === 0 || nRight === n) continue;
+      st.any = true;
+      const raw = 2 * (gP * H[nC + c] - gN * H[c]) - T;
+      const abs = raw < 0 ? -raw : raw;
+      if (abs > bestRaw + tol) {
+        bestRaw = abs;
+        st.found = true;
+        st.f = f;
+        st.k = c;
+        st.missingRight = false;
+        st.polarity = raw < 0 ? -1 : 1;
+      }
+    }
+  }
+  if (bestRaw !== startRaw) st.bestAbs = bestRaw / W;
+  return W;
+}
+
 function boost(
   binning: Binning,
   codes: CodeArray[],
@@ -379,6 +496,7 @@ function boost(
     gP = 1;
   };
   const scanOut = new Int32Array(3);
+  const search: SearchState = { bestAbs: -1, found: false, any: false, f: 0, k: 0, missingRight: false, polarity: 1 };
   rebuild();
 
   // Validation state.
@@ -397,57 +515,21 @@ function boost(
 
   for (let t = 1; t <= opts.rounds; t++) {
     // --- Direction: steepest coordinate over all stumps, from the histograms.
-    let best: Candidate | null = null;
-    let bestAbs = -1;
-    let anyCandidate = false;
+    search.bestAbs = -1;
+    search.found = false;
+    search.any = false;
     let Wtot = 0;
     for (let f = 0; f < F; f++) {
-      const H = hist[f];
-      const nC = nCodes[f];
-      const cnt = counts[f];
-      let T = 0;
-      let W = 0;
-      for (let b = 0; b < nC; b++) {
-        const p = gP * H[nC + b];
-        const q = gN * H[b];
-        T += p - q;
-        W += p + q;
-      }
+      const W = searchFeature(hist[f], nCodes[f], counts[f], isNumeric[f], f, gP, gN, n, search);
       if (f === 0) Wtot = W;
       if (!(W > 0) || !Number.isFinite(W)) {
         throw new TrainingError('overflow', `Weights overflowed or vanished at round ${t} (total weight ${W}); try shrinkage < 1`);
       }
-      const consider = (k: number, sRight: number, nRight: number, missingRight: boolean) => {
-        if (nRight === 0 || nRight === n) return;
-        anyCandidate = true;
-        const raw = 2 * sRight - T;
-        const abs = Math.abs(raw) / W;
-        if (abs > bestAbs + TIE_TOLERANCE) {
-          bestAbs = abs;
-          best = { f, k, missingRight, polarity: raw < 0 ? -1 : 1, edge: abs };
-        }
-      };
-      if (isNumeric[f]) {
-        const miss = nC - 1;
-        const K = nC - 2; // number of cuts; value bins 0..K
-        const sMiss = gP * H[nC + miss] - gN * H[miss];
-        const cMiss = cnt[miss];
-        const tVal = T - sMiss;
-        let left = 0;
-        let nLeft = 0;
-        for (let k = 0; k < K; k++) {
-          left += gP * H[nC + k] - gN * H[k];
-          nLeft += cnt[k];
-          const sRight = tVal - left;
-          const nRightVal = n - cMiss - nLeft;
-          consider(k, sRight, nRightVal, false);
-          if (cMiss > 0) consider(k, sRight + sMiss, nRightVal + cMiss, true);
-        }
-        if (cMiss > 0) consider(K, sMiss, cMiss, true);
-      } else {
-        for (let c = 0; c < nC; c++) consider(c, gP * H[nC + c] - gN * H[c], cnt[c], false);
-      }
     }
+    const anyCandidate = search.any;
+    const best: Candidate | null = search.found
+      ? { f: search.f, k: search.k, missingRight: search.missingRight, polarity: search.polarity, edge: search.bestAbs }
+      : null;
     if (!anyCandidate) throw new TrainingError('no-candidate', 'Every feature is constant on the training rows: no stump can split them');
     const cand = best as Candidate | null;
     if (!cand || !(cand.edge > MIN_EDGE) || !Number.isFinite(cand.edge)) {
