@@ -17,6 +17,7 @@ describe('incremental histograms vs plain full rebuild', () => {
     { name: 'uniform start, full step', opts: { rounds: 120 } },
     { name: 'class weights and shrinkage, no rebuild for 1000 rounds', opts: { rounds: 120, shrinkage: 0.3, classWeights: { positive: 20, negative: 1 }, rebuildEvery: 1000 } },
     { name: 'rebuild every round', opts: { rounds: 60, histogramUpdate: 'rebuild' as const } },
+    { name: 'no feature bundling', opts: { rounds: 60, bundleFeatures: false } },
   ];
   for (const c of cases) {
     it(`same stumps: ${c.name}`, () => {

@@ -44,6 +44,11 @@ export const trainOptionsSchema = z
      */
     histogramUpdate: z.enum(['incremental', 'rebuild']).default('incremental'),
     /**
+     * Pack low-cardinality features (at most 128 codes) into shared one-byte joint codes so
+     * one gather serves several histograms; exact (each histogram is a marginal). Default true.
+     */
+    bundleFeatures: z.boolean().default(true),
+    /**
      * In incremental mode, rebuild histograms exactly every this many rounds to stop drift.
      * Default 32 (the tests see the same stumps as a full rebuild even with 1000).
      */

@@ -444,6 +444,40 @@ function searchFeature(
   return W;
 }
 
+/**
+ * Histogram units: a feature on its own, or a bundle of low-cardinality
+ * features sharing one byte per row (joint code sum_k b_k(x) * mult_k, at most
+ * 256 codes). Each member's histogram is the exact marginal of the joint one,
+ * and one gather per row serves every member: fewer passes per round.
+ */
+interface Unit {
+  features: number[];
+  mult: number[];
+  /** Number of joint codes (= nCodes of a lone feature). */
+  J: number;
+}
+
+function planUnits(nCodes: number[], codes: CodeArray[], enabled: boolean): Unit[] {
+  const units: Unit[] = [];
+  const small: number[] = [];
+  nCodes.forEach((nC, f) => {
+    if (enabled && codes[f] instanceof Uint8Array && nC <= 128) small.push(f);
+    else units.push({ features: [f], mult: [1], J: nC });
+  });
+  // First fit, largest first (a deterministic packing; any packing gives the same histograms).
+  small.sort((a, b) => nCodes[b] - nCodes[a] || a - b);
+  const bundles: Unit[] = [];
+  for (const f of small) {
+    const u = bundles.find((b) => b.J * nCodes[f] <= 256);
+    if (u) {
+      u.mult.push(u.J);
+      u.features.push(f);
+      u.J *= nCodes[f];
+    } else bundles.push({ features: [f], mult: [1], J: nCodes[f] });
+  }
+  return [...units, ...bundles];
+}
+
 function boost(
   binning: Binning,
   codes: CodeArray[],
@@ -478,15 +512,53 @@ function boost(
   const Ft = new Float64Array(n);
   const idx = exec ? new Int32Array(exec.allocate(4 * n) as ArrayBuffer) : new Int32Array(n);
   const delta = f64(n);
-  const hist = nCodes.map((nC) => f64(2 * nC));
 
-  const stride = Math.max(256, ...nCodes);
+  const units = planUnits(nCodes, codes, opts.bundleFeatures);
+  const unitOf = new Int32Array(F);
+  const decode: (Uint8Array | null)[] = new Array(F).fill(null);
+  const unitCodes: CodeArray[] = units.map((u, ui) => {
+    u.features.forEach((f) => (unitOf[f] = ui));
+    if (u.features.length === 1) return codes[u.features[0]];
+    const out = exec ? new Uint8Array(exec.allocate(n) as ArrayBuffer) : new Uint8Array(n);
+    u.features.forEach((f, k) => {
+      const col = codes[f];
+      const mult = u.mult[k];
+      for (let i = 0; i < n; i++) out[i] += col[i] * mult;
+      const dec = new Uint8Array(u.J);
+      for (let j = 0; j < u.J; j++) dec[j] = Math.floor(j / mult) % nCodes[f];
+      decode[f] = dec;
+    });
+    return out;
+  });
+  const unitN = units.map((u) => u.J);
+  const hist = unitN.map((J) => f64(2 * J));
+  // Per-feature histograms the search reads: the unit's own for a lone feature, a marginal for a bundle member.
+  const mhist = nCodes.map((nC, f) => (decode[f] ? new Float64Array(2 * nC) : hist[unitOf[f]]));
+  const bundled = units.filter((u) => u.features.length > 1);
+  const marginalize = () => {
+    for (const u of bundled) {
+      const H = hist[unitOf[u.features[0]]];
+      const J = u.J;
+      for (const f of u.features) {
+        const M = mhist[f];
+        const dec = decode[f]!;
+        const nC = nCodes[f];
+        M.fill(0);
+        for (let j = 0; j < J; j++) {
+          M[dec[j]] += H[j];
+          M[nC + dec[j]] += H[J + j];
+        }
+      }
+    }
+  };
+
+  const stride = Math.max(256, ...unitN);
   const tmp = new Float64Array(4 * stride);
-  const allFeatures = Array.from({ length: F }, (_, f) => f);
-  const local = exec ? exec.attach({ codes, hist, nCodes, w, idx, delta, nNeg, n, stride }) : allFeatures;
+  const allUnits = units.map((_, u) => u);
+  const local = exec ? exec.attach({ codes: unitCodes, hist, nCodes: unitN, w, idx, delta, nNeg, n, stride }) : allUnits;
   const rebuild = () => {
     exec?.begin('rebuild', 0, 0);
-    for (const f of local) buildHistogram(codes[f], w, nNeg, n, hist[f], nCodes[f], tmp, stride);
+    for (const u of local) buildHistogram(unitCodes[u], w, nNeg, n, hist[u], unitN[u], tmp, stride);
     exec?.end();
   };
   const absorbScales = () => {
@@ -515,12 +587,13 @@ function boost(
 
   for (let t = 1; t <= opts.rounds; t++) {
     // --- Direction: steepest coordinate over all stumps, from the histograms.
+    marginalize();
     search.bestAbs = -1;
     search.found = false;
     search.any = false;
     let Wtot = 0;
     for (let f = 0; f < F; f++) {
-      const W = searchFeature(hist[f], nCodes[f], counts[f], isNumeric[f], f, gP, gN, n, search);
+      const W = searchFeature(mhist[f], nCodes[f], counts[f], isNumeric[f], f, gP, gN, n, search);
       if (f === 0) Wtot = W;
       if (!(W > 0) || !Number.isFinite(W)) {
         throw new TrainingError('overflow', `Weights overflowed or vanished at round ${t} (total weight ${W}); try shrinkage < 1`);
@@ -554,7 +627,7 @@ function boost(
     // Weight by (side, class) in true units, from the chosen feature's histogram.
     const side = sideTable(binning, cand);
     const nC = nCodes[cand.f];
-    const H = hist[cand.f];
+    const H = mhist[cand.f];
     let WRp = 0;
     let WRn = 0;
     let WLp = 0;
@@ -590,13 +663,20 @@ function boost(
     gN = (gN * fBigN) / Zraw;
 
     // --- Scan the chosen column once: update F on training rows, count errors, collect the small side.
-    const col = codes[cand.f];
-    const isSmall = new Uint8Array(nC);
-    for (let b = 0; b < nC; b++) isSmall[b] = (side[b] === 1) === smallRight ? 1 : 0;
-    // alpha h by code: h = s on the right side, -s on the left.
+    // alpha h by code: h = s on the right side, -s on the left (hv by the feature's codes, hvJ by its unit's codes).
     const hv = new Float64Array(nC);
     for (let b = 0; b < nC; b++) hv[b] = side[b] ? alpha * s : -alpha * s;
-    scanChosen(col, hv, isSmall, Ft, idx, nNeg, n, scanOut);
+    const cu = unitOf[cand.f];
+    const J = unitN[cu];
+    const dec = decode[cand.f];
+    const isSmall = new Uint8Array(J);
+    const hvJ = new Float64Array(J);
+    for (let j = 0; j < J; j++) {
+      const b = dec ? dec[j] : j;
+      isSmall[j] = (side[b] === 1) === smallRight ? 1 : 0;
+      hvJ[j] = hv[b];
+    }
+    scanChosen(unitCodes[cu], hvJ, isSmall, Ft, idx, nNeg, n, scanOut);
     const m = scanOut[0];
     const mNeg = scanOut[1];
     const errors = scanOut[2];
@@ -608,7 +688,7 @@ function boost(
       rebuild();
     } else {
       exec?.begin('update', m, mNeg);
-      for (const f of local) addSmallSide(hist[f], codes[f], idx, delta, m, mNeg, nCodes[f], tmp, stride);
+      for (const u of local) addSmallSide(hist[u], unitCodes[u], idx, delta, m, mNeg, unitN[u], tmp, stride);
       exec?.end();
     }
     if (!Number.isFinite(gP) || !Number.isFinite(gN) || !(gP > 0) || !(gN > 0)) {
