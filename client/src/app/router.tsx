@@ -1,6 +1,6 @@
 import type { QueryClient } from '@tanstack/react-query';
 import type { ComponentType } from 'react';
-import { createBrowserRouter, Outlet, type RouteObject } from 'react-router';
+import { createBrowserRouter, Outlet, type LoaderFunction, type RouteObject } from 'react-router';
 import type { Capability } from '@shared/auth/roles';
 import { LoadingLine } from '@/components/ui/spinner';
 import { appLayoutLoader, AppLayout } from './routes/app-layout';
@@ -18,7 +18,7 @@ export type RouteHandle = { capability?: Capability };
  * own chunk as it grows.
  */
 export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
-  const screen = (path: string, capability: Capability, load: () => Promise<{ Component: ComponentType }>): RouteObject => ({
+  const screen = (path: string, capability: Capability, load: () => Promise<{ Component: ComponentType; loader?: LoaderFunction }>): RouteObject => ({
     path,
     handle: { capability } satisfies RouteHandle,
     errorElement: <RouteError />,
@@ -34,6 +34,11 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
       children: [
         { path: '/sign-in', loader: signInLoader(queryClient), element: <SignInRoute />, errorElement: <RouteError /> },
         {
+          path: '/accept-invite',
+          errorElement: <RouteError />,
+          lazy: async () => ({ Component: (await import('./routes/accept-invite')).AcceptInviteRoute }),
+        },
+        {
           id: 'app',
           loader: appLayoutLoader(queryClient),
           element: <AppLayout />,
@@ -41,10 +46,19 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
           children: [
             { index: true, element: <HomeRedirect /> },
             screen('queue', 'queue:read', async () => ({ Component: (await import('./routes/queue')).QueueRoute })),
-            screen('board', 'board:read', async () => ({ Component: (await import('./routes/board')).BoardRoute })),
+            screen('board', 'board:read', async () => {
+              const route = await import('./routes/board');
+              return { Component: route.BoardRoute, loader: route.boardLoader(queryClient) };
+            }),
             screen('models', 'models:read', async () => ({ Component: (await import('./routes/models')).ModelsRoute })),
-            screen('admin', 'users:manage', async () => ({ Component: (await import('./routes/admin')).AdminRoute })),
-            screen('audit', 'audit:read', async () => ({ Component: (await import('./routes/audit')).AuditRoute })),
+            screen('admin', 'users:manage', async () => {
+              const route = await import('./routes/admin');
+              return { Component: route.AdminRoute, loader: route.adminLoader(queryClient) };
+            }),
+            screen('audit', 'audit:read', async () => {
+              const route = await import('./routes/audit');
+              return { Component: route.AuditRoute, loader: route.auditLoader(queryClient) };
+            }),
             screen('data', 'data:backfill', async () => ({ Component: (await import('./routes/data')).DataRoute })),
             { path: '*', element: <NotFoundRoute />, errorElement: <RouteError /> },
           ],

@@ -1,19 +1,19 @@
-import { NowPanel, ScreenHeader } from '@/components/ui/screen-header';
+import type { QueryClient } from '@tanstack/react-query';
+import { apiKeysQueryOptions } from '@/features/admin/api/get-api-keys';
+import { usersQueryOptions } from '@/features/admin/api/get-users';
+import { AdminScreen } from '@/features/admin/components/admin-screen';
+import { useSessionUser } from '../session';
+
+/** Starts the account and key reads while the screen loads (not awaited; never throws). */
+export function adminLoader(queryClient: QueryClient) {
+  return () => {
+    void queryClient.prefetchQuery(usersQueryOptions());
+    void queryClient.prefetchQuery(apiKeysQueryOptions());
+    return null;
+  };
+}
 
 export function AdminRoute() {
-  return (
-    <div className="flex flex-col gap-4">
-      <title>Admin · Edgecase</title>
-      <ScreenHeader title="Admin">
-        <NowPanel>
-          Not connected to accounts yet. This will show locked accounts and API keys that have not been used or
-          are due for rotation.
-        </NowPanel>
-      </ScreenHeader>
-      <p className="max-w-prose text-sm text-muted">
-        Coming here: staff accounts and their roles, deactivation (which ends the person's sessions at once), and
-        API keys for the upstream systems that send transactions.
-      </p>
-    </div>
-  );
+  const user = useSessionUser();
+  return <AdminScreen meId={user.id} />;
 }

@@ -1,19 +1,19 @@
-import { NowPanel, ScreenHeader } from '@/components/ui/screen-header';
+import type { QueryClient } from '@tanstack/react-query';
+import type { LoaderFunctionArgs } from 'react-router';
+import { auditQueryOptions } from '@/features/audit/api/get-audit';
+import { auditFacetsQueryOptions } from '@/features/audit/api/get-audit-facets';
+import { AuditScreen } from '@/features/audit/components/audit-screen';
+import { filtersFromSearch } from '@/features/audit/utils/audit-search';
+
+/** Starts reading the page the address asks for, and the filter choices (not awaited; never throws). */
+export function auditLoader(queryClient: QueryClient) {
+  return ({ request }: LoaderFunctionArgs) => {
+    void queryClient.prefetchQuery(auditQueryOptions(filtersFromSearch(new URL(request.url).searchParams)));
+    void queryClient.prefetchQuery(auditFacetsQueryOptions());
+    return null;
+  };
+}
 
 export function AuditRoute() {
-  return (
-    <div className="flex flex-col gap-4">
-      <title>Audit · Edgecase</title>
-      <ScreenHeader title="Audit">
-        <NowPanel>
-          Not connected to the audit trail yet. This will show sensitive changes since you last looked: threshold
-          changes, model promotions, role changes.
-        </NowPanel>
-      </ScreenHeader>
-      <p className="max-w-prose text-sm text-muted">
-        Coming here: who did what and when: sign-ins, claims, dispositions, reassignments, approvals, threshold
-        changes, model promotions and account changes, filterable by person, case and time, and exportable.
-      </p>
-    </div>
-  );
+  return <AuditScreen />;
 }

@@ -1,20 +1,26 @@
-import { NowPanel, ScreenHeader } from '@/components/ui/screen-header';
+import type { QueryClient } from '@tanstack/react-query';
+import { approvalsQueryOptions } from '@/features/board/api/get-approvals';
+import { boardQueryOptions } from '@/features/board/api/get-board';
+import { settingsQueryOptions } from '@/features/board/api/get-settings';
+import { BoardScreen } from '@/features/board/components/board-screen';
+import { useSessionUser } from '../session';
+
+/**
+ * Starts the board's reads while the screen's code loads, with the same query
+ * options the panels use. Not awaited: the heading and the "what needs me
+ * now" line render at once and each panel fills in as its data lands.
+ * Prefetching never throws, so a role without the board sees "not allowed".
+ */
+export function boardLoader(queryClient: QueryClient) {
+  return () => {
+    void queryClient.prefetchQuery(boardQueryOptions());
+    void queryClient.prefetchQuery(approvalsQueryOptions('pending'));
+    void queryClient.prefetchQuery(settingsQueryOptions());
+    return null;
+  };
+}
 
 export function BoardRoute() {
-  return (
-    <div className="flex flex-col gap-4">
-      <title>Board · Edgecase</title>
-      <ScreenHeader title="Board">
-        <NowPanel>
-          Not connected to the team's work yet. This will show approvals waiting for your four-eyes review, cases
-          about to breach the SLA, and anyone holding more cases than they can clear.
-        </NowPanel>
-      </ScreenHeader>
-      <p className="max-w-prose text-sm text-muted">
-        Coming here: the team's workload live: who holds which cases and for how long, the SLA clock of each,
-        reassigning one case or many, approving high-value decisions, and the daily alert budget that sets the
-        alert threshold.
-      </p>
-    </div>
-  );
+  const user = useSessionUser();
+  return <BoardScreen meId={user.id} />;
 }

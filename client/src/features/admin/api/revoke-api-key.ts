@@ -1,0 +1,19 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import type { AdminApiKey } from '@shared/api/admin';
+import { api } from '@/lib/api-client';
+import { apiKeysQueryOptions } from './get-api-keys';
+
+/** POST /api/admin/api-keys/:id/revoke: servers stop accepting the key within 30 seconds. */
+export async function revokeApiKey(id: number): Promise<AdminApiKey[]> {
+  const { apiKeys } = await api.post<{ apiKeys: AdminApiKey[] }>(`/api/admin/api-keys/${id}/revoke`);
+  return apiKeys;
+}
+
+export function useRevokeApiKey() {
+  const queryClient = useQueryClient();
+  return useMutation({
+    mutationFn: revokeApiKey,
+    onSuccess: (keys) => queryClient.setQueryData(apiKeysQueryOptions().queryKey, keys),
+    onSettled: () => void queryClient.invalidateQueries({ queryKey: apiKeysQueryOptions().queryKey }),
+  });
+}
