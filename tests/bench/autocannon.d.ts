@@ -17,6 +17,7 @@ declare module 'autocannon' {
     pipelining?: number;
     duration?: number;
     amount?: number;
+    maxOverallRequests?: number;
     overallRate?: number;
     connectionRate?: number;
     timeout?: number;

@@ -5,6 +5,7 @@
 const SUBCOMMANDS: Record<string, () => Promise<{ run: (argv: string[]) => Promise<void> }>> = {
   train: () => import('./train'),
   pipeline: () => import('./pipeline'),
+  console: () => import('./console'),
 };
 
 async function main(): Promise<void> {

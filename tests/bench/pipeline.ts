@@ -28,6 +28,8 @@ import { parseArgs } from 'node:util';
 import autocannon from 'autocannon';
 import { QueryTypes } from 'sequelize';
 import { createRedis } from '../../server/src/lib/redis';
+import { publishEvents } from '../../server/src/events/event-bus';
+import { readAlertingSettings, writeAlertingSettings } from '../../server/src/settings/settings-repository';
 import { seedDemoHistory, DEMO_WORLD_SEED } from '../../server/src/demo/seed-history';
 import { createDemoWorld, toIngestPayload, type SimulatedTransaction } from '../../server/src/demo/simulator/index';
 import {
@@ -134,6 +136,26 @@ class Traffic {
   }
 }
 
+const ALERT_SHARE = 0.03;
+
+async function alertOnTopShare(stack: Stack, tag: string, share: number): Promise<number> {
+  const rows = await stack.db.sequelize.query<{ p: number }>(
+    'SELECT s.probability AS p FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
+    { replacements: { p: `${tag}-%` }, type: QueryTypes.SELECT },
+  );
+  const threshold = pct(rows.map((r) => r.p), 100 * (1 - share));
+  const current = await readAlertingSettings(stack.db);
+  await writeAlertingSettings(stack.db, { ...current, threshold, reviewBand: Math.min(current.reviewBand, threshold) }, null);
+  const redis = createRedis(stack.config, { name: 'bench-settings' });
+  try {
+    await publishEvents(redis, stack.config.REDIS_PREFIX, [{ type: 'settings.changed', at: new Date().toISOString() }]);
+  } finally {
+    redis.disconnect();
+  }
+  await sleep(500);
+  return threshold;
+}
+
 interface RunFigures {
   acceptedPerS: number;
   scoredPerS: number;
@@ -165,7 +187,7 @@ async function autocannonBodies(stack: Stack, bodies: string[], o: { connections
     connections: o.connections,
     duration: o.seconds,
     // Bounded by count too: never more requests than prepared bodies (no id is sent twice).
-    amount: bodies.length,
+    maxOverallRequests: bodies.length,
     timeout: 30,
     requests: [
       {
@@ -216,6 +238,11 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const scoredWindow = (new Date(sc.last).getTime() - batchStartedAt) / 1000;
   const scoredPerS = Number(sc.n) / scoredWindow;
   say(`batch: ${sc.n} scored by ${scoredWindow.toFixed(1)} s after the start (${scoredPerS.toFixed(0)}/s); queue drained ${drain?.toFixed(1) ?? 'not'} s after the load`);
+
+  // A share of what follows alerts: the threshold goes to the score that the top `ALERT_SHARE` of
+  // the batch phase reached (the demo model trained on a small history alerts on very little).
+  const threshold = await alertOnTopShare(stack, batchTag, ALERT_SHARE);
+  say(`alert threshold set to ${threshold.toFixed(4)} (top ${(ALERT_SHARE * 100).toFixed(0)}% of the batch phase's scores)`);
 
   // ── single ──────────────────────────────────────────────────────────────
   const singleTag = `bps${run}`;

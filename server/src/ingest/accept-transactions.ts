@@ -4,8 +4,9 @@ import type { Config } from '../config/index';
 import { AppError, type FieldIssue } from '../lib/app-error';
 import { parseIngestBody, type NormalisedTransaction } from '@shared/api/transactions';
 import { normaliseTransaction } from './normalise-transaction';
-import { storeTransactions, viewTransactions, type TransactionSource, type TransactionView } from './transaction-repository';
+import { viewTransactions, type TransactionSource, type TransactionView } from './transaction-repository';
 import type { ScoringQueue } from './ingest-queue';
+import { storeAndQueue, type IngestBatcher } from './ingest-batcher';
 
 export type IngestItemResult =
   | { id: string; status: 'accepted'; transactionId: number }
@@ -17,14 +18,12 @@ export interface IngestDeps {
   redis: Redis;
   config: Config;
   scoring: ScoringQueue;
+  /** Groups small concurrent requests into one transaction and job; without it each request is stored alone. */
+  batcher?: IngestBatcher;
 }
 
-const DEADLOCK = 1213;
-
-function isDeadlock(err: unknown): boolean {
-  const e = err as { parent?: { errno?: number }; original?: { errno?: number } };
-  return e?.parent?.errno === DEADLOCK || e?.original?.errno === DEADLOCK;
-}
+/** Requests with fewer valid transactions than this are grouped with concurrent ones (see IngestBatcher). */
+const GROUP_BELOW = 100;
 
 /**
  * The ingest story: validate each item on its own, tokenise card numbers,
@@ -63,14 +62,15 @@ export async function acceptTransactions(
     throw AppError.unavailable('Scoring queue unavailable; nothing was accepted. Retry the same request.', 2);
   }
 
-  let stored: Awaited<ReturnType<typeof storeTransactions>> | null = null;
-  for (let attempt = 0; valid.length > 0 && !stored; attempt += 1) {
-    try {
-      stored = await storeTransactions(d.db, valid.map((v) => v.t), { source: meta.source, apiKeyId: meta.apiKeyId, receivedAt: now });
-    } catch (err) {
-      if (!isDeadlock(err) || attempt >= 3) throw err;
-    }
-  }
+  const items = valid.map((v) => v.t);
+  const storeMeta = { source: meta.source, apiKeyId: meta.apiKeyId, receivedAt: now };
+  // Small requests share a transaction and a scoring job with their concurrent neighbours; large ones go alone.
+  const stored =
+    items.length === 0
+      ? null
+      : d.batcher && items.length < GROUP_BELOW
+        ? await d.batcher.submit(items, storeMeta)
+        : await storeAndQueue(d.db, d.scoring, items, storeMeta);
 
   const acceptedIds: number[] = [];
   if (stored) {
@@ -86,18 +86,8 @@ export async function acceptTransactions(
         results[index] = { id: t.externalId, status: 'duplicate', transactionId: id, previous: previous.get(t.externalId) ?? null };
       }
     }
-    if (acceptedIds.length > 0) {
-      const job = { transactionIds: acceptedIds, batch: stored.batch };
-      try {
-        await d.scoring.enqueue(job);
-      } catch {
-        // Stored but not queued: queued again from here once Redis is back (and by the sweeper if this
-        // process stops first), so nothing is lost; the caller is told to retry and its retry is
-        // answered "duplicate".
-        d.scoring.enqueueLater(job);
-        throw AppError.unavailable('Scoring queue unavailable; retry the same request.', 2);
-      }
-    }
+    // Stored but not queued: it is queued again once Redis is back, and the caller's retry is answered "duplicate".
+    if (acceptedIds.length > 0 && !stored.queued) throw AppError.unavailable('Scoring queue unavailable; retry the same request.', 2);
   }
   // In-request repeats point at the first occurrence's outcome.
   for (let i = 0; i < results.length; i += 1) {

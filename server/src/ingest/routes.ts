@@ -11,6 +11,7 @@ import type { ActiveModels } from '../scoring/active-models';
 import { scoreRowWith } from '../scoring/score-transactions';
 import type { VelocityStore } from '../scoring/velocity';
 import { acceptTransactions } from './accept-transactions';
+import { IngestBatcher } from './ingest-batcher';
 import type { ScoringQueue } from './ingest-queue';
 import { viewTransactions } from './transaction-repository';
 
@@ -25,7 +26,8 @@ interface IngestRouteDeps {
 
 const apiKey = (scope: string) => ({ kind: 'apiKey', scope }) as const;
 
-export function ingestRoutes(d: IngestRouteDeps): RouteSpec[] {
+export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
+  const d = { ...routeDeps, batcher: new IngestBatcher(routeDeps.db, routeDeps.scoring) };
   return [
     {
       method: 'post',

@@ -5,6 +5,9 @@ import type { NormalisedTransaction } from '@shared/api/transactions';
 
 export type TransactionSource = 'api' | 'decision' | 'csv' | 'seed';
 
+/** Inserts of the rows a read-back did not find, at most (see storeTransactions). */
+const MAX_PASSES = 4;
+
 /** What the API tells a caller about a stored transaction. */
 export interface TransactionView {
   id: string;
@@ -45,55 +48,73 @@ export async function storeTransactions(
     for (const it of items) cards.set(it.card.panHash, it.card);
     // Sorted, so concurrent batches lock card rows in the same order and cannot deadlock on them.
     const cardRows = [...cards.values()].sort((a, b) => (a.panHash < b.panHash ? -1 : 1));
-    await db.sequelize.query(
-      `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${cardRows.map(() => "(?, ?, ?, ?, 'active', ?, ?)").join(', ')}
-       ON DUPLICATE KEY UPDATE id = id`,
-      { replacements: cardRows.flatMap((c) => [c.panHash, c.bin, c.last4, c.cardholderId, meta.receivedAt, meta.receivedAt]), type: QueryTypes.INSERT, transaction: t },
-    );
-    const ids = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE pan_hash IN (:h)', {
-      replacements: { h: cardRows.map((c) => c.panHash) },
-      type: QueryTypes.SELECT,
-      transaction: t,
-    });
-    const cardId = new Map(ids.map((r) => [r.pan_hash, Number(r.id)]));
+    // Insert, then read back; whatever the read does not find is inserted again. Under concurrency
+    // InnoDB can count a row as a duplicate and skip it (ON DUPLICATE KEY / IGNORE) although no row
+    // with that key ends up committed (the conflicting insert was rolled back), so "not found after
+    // the insert" happens and must not turn into a lost card or a transaction answered "duplicate".
+    // The reads are locking reads: they see the newest committed rows, not this transaction's snapshot.
+    const cardId = new Map<string, number>();
+    for (let pass = 0, todo = cardRows; todo.length > 0; pass += 1, todo = todo.filter((c) => !cardId.has(c.panHash))) {
+      if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} card rows still missing after ${MAX_PASSES} inserts`);
+      await db.sequelize.query(
+        `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${todo.map(() => "(?, ?, ?, ?, 'active', ?, ?)").join(', ')}
+         ON DUPLICATE KEY UPDATE id = id`,
+        { replacements: todo.flatMap((c) => [c.panHash, c.bin, c.last4, c.cardholderId, meta.receivedAt, meta.receivedAt]), type: QueryTypes.INSERT, transaction: t },
+      );
+      const ids = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE pan_hash IN (:h) LOCK IN SHARE MODE', {
+        replacements: { h: todo.map((c) => c.panHash) },
+        type: QueryTypes.SELECT,
+        transaction: t,
+      });
+      for (const r of ids) cardId.set(r.pan_hash, Number(r.id));
+    }
     const cols =
       '(external_id, source, ingest_batch, api_key_id, card_id, occurred_at, received_at, amount_minor, currency, currency_exponent, merchant_ref, merchant_name, mcc, merchant_country, card_present, channel, device_id, ip, lat, lon, status)';
-    for (let i = 0; i < items.length; i += 500) {
-      const chunk = items.slice(i, i + 500);
-      await db.sequelize.query(
-        `INSERT IGNORE INTO transactions ${cols} VALUES ${chunk.map(() => "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 'accepted')").join(', ')}`,
-        {
-          replacements: chunk.flatMap((x) => [
-            x.externalId,
-            meta.source,
-            batch,
-            meta.apiKeyId,
-            cardId.get(x.card.panHash),
-            x.occurredAt,
-            meta.receivedAt,
-            x.amountMinor,
-            x.currency,
-            x.currencyExponent,
-            x.merchant.id,
-            x.merchant.name,
-            x.merchant.mcc,
-            x.merchant.country,
-            x.cardPresent,
-            x.channel,
-            x.deviceId ?? null,
-            x.ip ?? null,
-            x.lat ?? null,
-            x.lon ?? null,
-          ]),
-          type: QueryTypes.INSERT,
-          transaction: t,
-        },
+    const rows: { id: number; external_id: string; ingest_batch: string }[] = [];
+    const found = new Set<string>();
+    for (let pass = 0, todo = items; todo.length > 0; pass += 1, todo = todo.filter((x) => !found.has(x.externalId))) {
+      if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} transactions still missing after ${MAX_PASSES} inserts`);
+      for (let i = 0; i < todo.length; i += 500) {
+        const chunk = todo.slice(i, i + 500);
+        await db.sequelize.query(
+          `INSERT IGNORE INTO transactions ${cols} VALUES ${chunk.map(() => "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 'accepted')").join(', ')}`,
+          {
+            replacements: chunk.flatMap((x) => [
+              x.externalId,
+              meta.source,
+              batch,
+              meta.apiKeyId,
+              cardId.get(x.card.panHash),
+              x.occurredAt,
+              meta.receivedAt,
+              x.amountMinor,
+              x.currency,
+              x.currencyExponent,
+              x.merchant.id,
+              x.merchant.name,
+              x.merchant.mcc,
+              x.merchant.country,
+              x.cardPresent,
+              x.channel,
+              x.deviceId ?? null,
+              x.ip ?? null,
+              x.lat ?? null,
+              x.lon ?? null,
+            ]),
+            type: QueryTypes.INSERT,
+            transaction: t,
+          },
+        );
+      }
+      const got = await db.sequelize.query<{ id: number; external_id: string; ingest_batch: string }>(
+        'SELECT id, external_id, ingest_batch FROM transactions WHERE external_id IN (:ids) LOCK IN SHARE MODE',
+        { replacements: { ids: todo.map((x) => x.externalId) }, type: QueryTypes.SELECT, transaction: t },
       );
+      for (const r of got) {
+        found.add(r.external_id);
+        rows.push(r);
+      }
     }
-    const rows = await db.sequelize.query<{ id: number; external_id: string; ingest_batch: string }>(
-      'SELECT id, external_id, ingest_batch FROM transactions WHERE external_id IN (:ids)',
-      { replacements: { ids: items.map((x) => x.externalId) }, type: QueryTypes.SELECT, transaction: t },
-    );
     for (const r of rows) (r.ingest_batch === batch ? inserted : existing).set(r.external_id, Number(r.id));
   };
   if (outer) await run(outer);
