@@ -5,7 +5,7 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { scoreBatch, stagedMargins, trainModel, type TrainResult } from '../../shared/src/model';
 import { breastCancerSet, rowOf } from './helpers/data';
-import { sklearnAdaBoostReference } from './helpers/python';
+import { breastCancerData } from './helpers/python';
 
 let set: ReturnType<typeof breastCancerSet>;
 let fit: TrainResult;
@@ -13,7 +13,7 @@ const ROUNDS = 30;
 
 beforeAll(() => {
   // Real data: the Wisconsin breast-cancer set as scikit-learn ships it (UCI; Street, Wolberg & Mangasarian 1993).
-  set = breastCancerSet(sklearnAdaBoostReference(1).data);
+  set = breastCancerSet(breastCancerData());
   fit = trainModel(set, { rounds: ROUNDS });
 }, 120_000);
 

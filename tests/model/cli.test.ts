@@ -5,7 +5,7 @@ import { join, resolve } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
 import { parseModel } from '../../shared/src/model';
 import { runCli } from '../../scripts/model/cli';
-import { sklearnAdaBoostReference, tempDir } from './helpers/python';
+import { breastCancerData, tempDir } from './helpers/python';
 
 const root = resolve(import.meta.dirname, '../..');
 const t = tempDir('edgecase-cli-');
@@ -25,7 +25,7 @@ function writeCsv(name: string, text: string): string {
 describe('model CLI', () => {
   it('trains and scores the breast-cancer data from CSV, with explanations', () => {
     // Real data written once by the reference script (UCI breast cancer, as scikit-learn ships it).
-    const d = sklearnAdaBoostReference(1).data;
+    const d = breastCancerData();
     const header = ['id', ...d.features, 'benign'];
     const lines = [header.map((h) => JSON.stringify(h)).join(',')];
     d.target.forEach((y, i) => lines.push([i, ...d.columns.map((c) => c[i]), y].join(',')));
@@ -44,7 +44,7 @@ describe('model CLI', () => {
   }, 60_000);
 
   it('uses --validation for early stopping and calibration, and writes the round trace', () => {
-    const d = sklearnAdaBoostReference(1).data;
+    const d = breastCancerData();
     const header = [...d.features, 'benign'].map((h) => JSON.stringify(h)).join(',');
     const rows = d.target.map((y, i) => [...d.columns.map((c) => c[i]), y].join(','));
     // Even rows train, odd rows validate (UCI breast cancer as scikit-learn ships it).

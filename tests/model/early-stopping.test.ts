@@ -6,14 +6,14 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { scoreBatch, trainModel, type TrainResult } from '../../shared/src/model';
 import { breastCancerSet } from './helpers/data';
-import { sklearnAdaBoostReference } from './helpers/python';
+import { breastCancerData } from './helpers/python';
 
 let fit: TrainResult;
 let val: { columns: ReturnType<typeof breastCancerSet>['columns']; labels: Int8Array };
 const PATIENCE = 15;
 
 beforeAll(() => {
-  const bc = breastCancerSet(sklearnAdaBoostReference(1).data);
+  const bc = breastCancerSet(breastCancerData());
   const pick = (parity: number) => {
     const idx = Array.from({ length: bc.labels.length }, (_, i) => i).filter((i) => i % 2 === parity);
     const columns: typeof bc.columns = {};

@@ -21,7 +21,7 @@ import {
   withCalibration,
 } from '../../shared/src/model';
 import { breastCancerSet } from './helpers/data';
-import { readJson, runReference, sklearnAdaBoostReference, tempDir, writeJson } from './helpers/python';
+import { readJson, runReference, breastCancerData, tempDir, writeJson } from './helpers/python';
 
 interface Ref {
   roc_auc: number;
@@ -40,7 +40,7 @@ interface Ref {
 const cases: { name: string; scores: Float64Array; probs: Float64Array; labels: Int8Array; platt: { F: Float64Array; y: Int8Array }; days: number[]; amounts: number[]; ref: Ref }[] = [];
 
 beforeAll(() => {
-  const bc = breastCancerSet(sklearnAdaBoostReference(1).data);
+  const bc = breastCancerSet(breastCancerData());
   const n = bc.labels.length;
   // Interleaved halves: even rows train, odd rows are held out.
   const even = Int32Array.from({ length: Math.ceil(n / 2) }, (_, i) => 2 * i);

@@ -20,14 +20,14 @@ import {
 } from '../../shared/src/model';
 import { syntheticFraudSet } from '../../scripts/model/synthetic';
 import { breastCancerSet, rowOf } from './helpers/data';
-import { sklearnAdaBoostReference } from './helpers/python';
+import { breastCancerData } from './helpers/python';
 
 const models: { name: string; model: Model; columns: ReturnType<typeof syntheticFraudSet>['columns']; n: number }[] = [];
 
 beforeAll(() => {
   const d = syntheticFraudSet(3000, 11);
   models.push({ name: 'fraud-like, categorical + missing', model: trainModel(d, { rounds: 150 }).model, columns: d.columns, n: 3000 });
-  const bc = breastCancerSet(sklearnAdaBoostReference(1).data);
+  const bc = breastCancerSet(breastCancerData());
   models.push({ name: 'breast cancer, exact', model: trainModel(bc, { rounds: 60, exact: true }).model, columns: bc.columns, n: bc.labels.length });
 }, 120_000);
 

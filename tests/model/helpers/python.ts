@@ -5,7 +5,7 @@
  * check that silently skipped would pass without checking anything.
  */
 import { execFileSync } from 'node:child_process';
-import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, renameSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 
@@ -70,4 +70,19 @@ export function sklearnAdaBoostReference(rounds: number): {
   } finally {
     t.cleanup();
   }
+}
+
+/**
+ * The breast-cancer data as scikit-learn ships it, written once by the
+ * reference script and cached in the temp dir for the other test files
+ * (the reference comparisons themselves always run Python).
+ */
+export function breastCancerData(): BreastCancer {
+  const cache = join(tmpdir(), 'edgecase-breast-cancer-v1.json');
+  if (existsSync(cache)) return readJson<BreastCancer>(cache);
+  const data = sklearnAdaBoostReference(1).data;
+  const part = `${cache}.${process.pid}.part`;
+  writeFileSync(part, JSON.stringify(data));
+  renameSync(part, cache);
+  return data;
 }
