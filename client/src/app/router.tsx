@@ -7,6 +7,7 @@ import { appLayoutLoader, AppLayout } from './routes/app-layout';
 import { HomeRedirect } from './routes/home-redirect';
 import { NotFoundRoute } from './routes/not-found';
 import { RouteError } from './routes/route-error';
+import { modelsRoutes } from './routes/models-routes';
 import { signInLoader, SignInRoute } from './routes/sign-in';
 
 /** Read by the signed-in layout: a route naming a capability shows "not allowed" to roles without it. */
@@ -50,7 +51,16 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
               const route = await import('./routes/board');
               return { Component: route.BoardRoute, loader: route.boardLoader(queryClient) };
             }),
-            screen('models', 'models:read', async () => ({ Component: (await import('./routes/models')).ModelsRoute })),
+            {
+              path: 'models',
+              handle: { capability: 'models:read' } satisfies RouteHandle,
+              errorElement: <RouteError />,
+              lazy: async () => {
+                const route = await import('./routes/models');
+                return { Component: route.ModelsRoute, loader: route.modelsLoader(queryClient) };
+              },
+              children: modelsRoutes(queryClient),
+            },
             screen('admin', 'users:manage', async () => {
               const route = await import('./routes/admin');
               return { Component: route.AdminRoute, loader: route.adminLoader(queryClient) };
