@@ -47,6 +47,10 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
           children: [
             { index: true, element: <HomeRedirect /> },
             screen('queue', 'queue:read', async () => ({ Component: (await import('./routes/queue')).QueueRoute })),
+            screen('cases/:id', 'queue:read', async () => {
+              const route = await import('./routes/case-file');
+              return { Component: route.CaseFileRoute, loader: route.caseFileLoader(queryClient) };
+            }),
             screen('board', 'board:read', async () => {
               const route = await import('./routes/board');
               return { Component: route.BoardRoute, loader: route.boardLoader(queryClient) };

@@ -13,8 +13,9 @@ import {
 /**
  * A small keyboard-shortcut registry. Keys are written as space-separated
  * sequences of `KeyboardEvent.key` values: "?", "Escape", "g q" (press g,
- * then q). Whatever is registered is what the help overlay lists, so the list
- * cannot drift from the keys that actually work.
+ * then q), or one chord with Ctrl (Cmd on a Mac): "Ctrl+Enter". Whatever is
+ * registered is what the help overlay lists, so the list cannot drift from the
+ * keys that actually work.
  */
 export type Hotkey = { keys: string; description: string; group: string };
 
@@ -86,7 +87,17 @@ export function HotkeysProvider({ children }: { children: ReactNode }) {
     const isPrefix = (keys: string) => [...entries.current.values()].some((e) => e.keys.startsWith(`${keys} `));
 
     const onKeyDown = (event: KeyboardEvent) => {
-      if (event.defaultPrevented || event.ctrlKey || event.metaKey || event.altKey) return;
+      if (event.defaultPrevented || event.altKey) return;
+      if (event.ctrlKey || event.metaKey) {
+        // A modifier chord is never text, so it works inside fields too (Ctrl+Enter saves a form while typing).
+        const chord = find(`Ctrl+${event.key}`);
+        if (chord) {
+          clearPending();
+          event.preventDefault();
+          chord.handler(event);
+        }
+        return;
+      }
       if (event.key !== 'Escape' && isTyping(event.target)) {
         clearPending();
         return;

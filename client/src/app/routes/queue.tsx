@@ -1,15 +1,15 @@
-import { CautionNote } from '@/components/ui/caution-note';
 import { MarginBar } from '@/components/ui/margin-bar';
 import { PanelBoundary } from '@/components/ui/panel-boundary';
 import { RiskBadge } from '@/components/ui/risk-badge';
-import { NowPanel, ScreenHeader } from '@/components/ui/screen-header';
+import { QueueScreen } from '@/features/queue/components/queue-screen';
 import { RISK_LEVELS } from '@/lib/risk';
+import { useSessionUser } from '../session';
 
 /** Reference for reading a score: every step of the scale with its range. */
 function ScoreKey() {
   return (
-    <section aria-labelledby="score-key-heading" className="rounded border border-border bg-surface p-3">
-      <h2 id="score-key-heading" className="text-sm font-semibold text-text">
+    <section aria-labelledby="score-key-heading">
+      <h2 id="score-key-heading" className="sr-only">
         How to read a score
       </h2>
       <p className="mt-1 text-xs text-muted">
@@ -45,24 +45,18 @@ function ScoreKey() {
 }
 
 export function QueueRoute() {
+  const user = useSessionUser();
   return (
     <div className="flex flex-col gap-4">
-      <title>Queue · Edgecase</title>
-      <ScreenHeader title="Queue">
-        <NowPanel>
-          Not connected to cases yet. This will show how many cases are waiting for you, which are closest to
-          their SLA, and how many new alerts arrived since you last looked.
-        </NowPanel>
-      </ScreenHeader>
-      <CautionNote />
-      <p className="max-w-prose text-sm text-muted">
-        Coming here: the live list of open cases, riskiest first, with each case's score, its top reasons and how
-        long it has waited. Claim a case, open its case file, and record a disposition (confirmed fraud,
-        legitimate, inconclusive) without leaving the keyboard.
-      </p>
-      <PanelBoundary title="How to read a score">
-        <ScoreKey />
-      </PanelBoundary>
+      <QueueScreen meId={user.id} />
+      <details className="group rounded border border-border bg-surface">
+        <summary className="cursor-pointer px-3 py-2 text-sm font-medium text-text">How to read a score</summary>
+        <div className="px-3 pb-3">
+          <PanelBoundary title="How to read a score">
+            <ScoreKey />
+          </PanelBoundary>
+        </div>
+      </details>
     </div>
   );
 }
