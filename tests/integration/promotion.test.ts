@@ -74,6 +74,36 @@ afterAll(async () => {
   await ts?.close();
 });
 
+describe('champion and challenger on live traffic', () => {
+  it('counts the alerts each would raise on the same transactions and their precision and recall on labels since', async () => {
+    // Three transactions while the challenger scores in shadow; the first gets a fraud label afterwards.
+    const t1 = await scoredBy(201);
+    expect(t1).toBe(first);
+    await scoredBy(202);
+    await scoredBy(203);
+    const rows = await ts.server.db.sequelize.query<{ transaction_id: number; champ: number; chal: number }>(
+      `SELECT s.transaction_id, s.probability AS champ, h.probability AS chal FROM transaction_scores s
+       JOIN shadow_scores h ON h.transaction_id = s.transaction_id AND h.model_version_id = ?
+       WHERE s.model_version_id = ? ORDER BY s.transaction_id`,
+      { replacements: [second, first], type: QueryTypes.SELECT },
+    );
+    expect(rows).toHaveLength(3);
+    await ts.server.db.sequelize.query(
+      "INSERT INTO labels (transaction_id, label, fraud_type, source, reported_at, created_at) VALUES (?, 'fraud', 'card_not_present', 'chargeback', UTC_TIMESTAMP(3), UTC_TIMESTAMP(3))",
+      { replacements: [rows[0].transaction_id], type: QueryTypes.INSERT },
+    );
+    const res = await ds.agent.get('/api/models/shadow?days=1').expect(200);
+    const thr = res.body.threshold as number;
+    // Worked out here from the stored scores: an alert is p >= threshold; one labelled transaction, fraud.
+    const alerts = (k: 'champ' | 'chal') => rows.filter((r) => r[k] >= thr).length;
+    const caught = (k: 'champ' | 'chal') => (rows[0][k] >= thr ? 1 : 0);
+    expect(res.body).toMatchObject({ transactions: 3, labelled: 1, fraud: 1, bothAlerted: rows.filter((r) => r.champ >= thr && r.chal >= thr).length });
+    expect(res.body.champion).toMatchObject({ id: first, alerts: alerts('champ'), fraudCaught: caught('champ'), recall: caught('champ') });
+    expect(res.body.challenger).toMatchObject({ id: second, alerts: alerts('chal'), fraudCaught: caught('chal'), recall: caught('chal') });
+    expect(res.body.champion.precision).toBe(caught('champ') === 1 ? 1 : null);
+  });
+});
+
 describe('promotion', () => {
   it('needs a written reason, and a supervisor to decide', async () => {
     const short = await file(second, 'better');

@@ -133,6 +133,23 @@ describe('a training run', () => {
     const done = await waitFor(() => events.find((e) => e.runId === runId && e.status === 'completed'));
     const rows = await ts.server.db.sequelize.query<{ id: number }>("SELECT id FROM model_versions WHERE role = 'challenger'", { type: QueryTypes.SELECT });
     expect(rows.map((r) => Number(r.id))).toEqual([done.modelVersionId]);
+
+    // Side by side on the newer version's test window: re-scored from the stored features, the newer
+    // version's figures are its own test evaluation again.
+    const first = events.find((e) => e.status === 'completed' && e.modelVersionId !== done.modelVersionId)!.modelVersionId!;
+    const cmp = await ds.agent.get(`/api/models/compare?a=${first}&b=${done.modelVersionId}`).expect(200);
+    const [stored] = await ts.server.db.sequelize.query<{ metrics: string }>('SELECT metrics FROM model_versions WHERE id = ?', {
+      replacements: [done.modelVersionId],
+      type: QueryTypes.SELECT,
+    });
+    const own = JSON.parse(stored.metrics).evaluation;
+    expect(cmp.body.rows).toBe(own.n);
+    expect(cmp.body.fraud).toBe(own.fraud);
+    const newer = cmp.body.versions.find((v: { id: number }) => v.id === done.modelVersionId);
+    expect(newer.rocAuc).toBeCloseTo(own.rocAuc, 12);
+    expect(newer.averagePrecision).toBeCloseTo(own.averagePrecision, 12);
+    expect(newer.overlapsTraining).toBe(false);
+    expect(cmp.body.versions.map((v: { id: number }) => v.id)).toEqual([first, done.modelVersionId]);
   });
 
   it('cancels a queued run at once and a running one after its current round, registering nothing', async () => {

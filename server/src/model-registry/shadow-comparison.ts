@@ -10,7 +10,7 @@ interface Totals {
   fraud: number;
   champ_alerts: number;
   chal_alerts: number;
-  both: number;
+  both_alerts: number;
   champ_labelled_alerts: number;
   chal_labelled_alerts: number;
   champ_caught: number;
@@ -38,7 +38,7 @@ export async function shadowComparison(db: Database, days: number, now = new Dat
             COALESCE(SUM(l.fraud), 0) AS fraud,
             COALESCE(SUM(s.probability >= :thr), 0) AS champ_alerts,
             COALESCE(SUM(h.probability >= :thr), 0) AS chal_alerts,
-            COALESCE(SUM(s.probability >= :thr AND h.probability >= :thr), 0) AS both,
+            COALESCE(SUM(s.probability >= :thr AND h.probability >= :thr), 0) AS both_alerts,
             COALESCE(SUM(s.probability >= :thr AND l.transaction_id IS NOT NULL), 0) AS champ_labelled_alerts,
             COALESCE(SUM(h.probability >= :thr AND l.transaction_id IS NOT NULL), 0) AS chal_labelled_alerts,
             COALESCE(SUM(s.probability >= :thr AND l.fraud = 1), 0) AS champ_caught,
@@ -69,7 +69,7 @@ export async function shadowComparison(db: Database, days: number, now = new Dat
     transactions: Number(t.n),
     labelled: Number(t.labelled),
     fraud,
-    bothAlerted: Number(t.both),
+    bothAlerted: Number(t.both_alerts),
     champion: side(champion, labels.champ, Number(t.champ_alerts), Number(t.champ_labelled_alerts), Number(t.champ_caught)),
     challenger: side(challenger, labels.chal, Number(t.chal_alerts), Number(t.chal_labelled_alerts), Number(t.chal_caught)),
   };

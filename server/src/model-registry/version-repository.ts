@@ -173,6 +173,8 @@ export function versionDetail(r: VersionRecord): ModelVersionDetail {
       nTrainPositive: model.training.nTrainPositive,
       nValidation: model.training.nValidation,
       nValidationPositive: model.training.nValidationPositive,
+      shrinkage: model.training.options.shrinkage,
+      maxRounds: model.training.options.rounds,
     },
     features: model.features.map((f) => ({ name: f.name, kind: f.kind })),
     hasDriftBaseline: Boolean(metrics.baseline),

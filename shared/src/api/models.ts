@@ -309,7 +309,18 @@ export interface ModelVersionDetail extends ModelVersionSummary {
   stepFunctions: StepFunction[];
   calibration: { a: number; b: number; n: number; positives: number } | null;
   windows: { train: [string, string]; validation: [string, string]; test: [string, string] } | null;
-  training: { roundsRun: number; bestRound: number; stoppedBy: string; nTrain: number; nTrainPositive: number; nValidation: number; nValidationPositive: number };
+  training: {
+    roundsRun: number;
+    bestRound: number;
+    stoppedBy: string;
+    nTrain: number;
+    nTrainPositive: number;
+    nValidation: number;
+    nValidationPositive: number;
+    /** The options boosting ran with. */
+    shrinkage: number;
+    maxRounds: number;
+  };
   features: { name: string; kind: 'numeric' | 'categorical' }[];
   hasDriftBaseline: boolean;
 }
@@ -454,7 +465,7 @@ export interface CoverageWeek {
 }
 
 export interface LabelDelay {
-  /** Fraud labels in the period, by days from transaction to report. */
+  /** Fraud labels in the period, by days from transaction to report; toDays -1 is the open last bin. */
   bins: { fromDays: number; toDays: number; disposition: number; chargeback: number; other: number }[];
   count: number;
   medianDays: number | null;

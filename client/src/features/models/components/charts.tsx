@@ -1,10 +1,10 @@
 import { useId, type ReactNode } from 'react';
+import { cn } from '@/lib/cn';
 import {
   Bar,
   BarChart,
   CartesianGrid,
   ComposedChart,
-  Legend,
   Line,
   LineChart,
   ReferenceLine,
@@ -24,6 +24,10 @@ import { day, num, pct } from '../utils/format';
  */
 
 const tick = { fontSize: 11, fill: 'currentColor' };
+
+/** A key entry: a line sample (text-* class, optional dash) or a swatch (bg-* class). */
+export type KeyItem = { label: string; className: string; line?: boolean; dash?: string };
+const compact = new Intl.NumberFormat('en-GB', { notation: 'compact', maximumSignificantDigits: 3 });
 const HEIGHT = 220;
 
 export function ChartFigure({
@@ -31,11 +35,14 @@ export function ChartFigure({
   description,
   children,
   numbers,
+  legend,
 }: {
   title: string;
   description?: ReactNode;
   children: ReactNode;
   numbers?: { columns: string[]; rows: (string | number)[][] };
+  /** The series' key, drawn in the same classes as the series (so it follows the theme). */
+  legend?: KeyItem[];
 }) {
   const id = useId();
   return (
@@ -48,6 +55,22 @@ export function ChartFigure({
       </figcaption>
       <div aria-hidden="true" className="text-muted">
         {children}
+        {legend && legend.length > 0 && (
+          <ul className="flex flex-wrap justify-center gap-x-4 text-[11px]">
+            {legend.map((k) => (
+              <li key={k.label} className="flex items-center gap-1">
+                {k.line ? (
+                  <svg viewBox="0 0 20 6" className={cn('h-1.5 w-5', k.className)}>
+                    <line x1="0" y1="3" x2="20" y2="3" stroke="currentColor" strokeWidth="2" strokeDasharray={k.dash} />
+                  </svg>
+                ) : (
+                  <span className={cn('inline-block h-2.5 w-2.5 rounded-sm', k.className)} />
+                )}
+                {k.label}
+              </li>
+            ))}
+          </ul>
+        )}
       </div>
       {numbers && numbers.rows.length > 0 && (
         <details className="text-xs print:hidden">
@@ -90,7 +113,8 @@ function thin<T>(xs: T[], max = 40): T[] {
 }
 
 const DASHES = ['', '6 3', '2 3'];
-const STROKES = ['stroke-brand', 'stroke-risk-6', 'stroke-muted'];
+// A Line's class sits on its group: the colour reaches the path through currentColor.
+const STROKES = ['text-brand', 'text-risk-6', 'text-muted'];
 
 export type CurveSeries = { name: string; points: CurvePoint[] };
 
@@ -100,6 +124,7 @@ export function CurveChart({ title, description, series, xLabel, yLabel, diagona
     <ChartFigure
       title={title}
       description={description}
+      legend={series.length > 1 ? series.map((x, i) => ({ label: x.name, className: STROKES[i % 3], line: true, dash: DASHES[i % 3] })) : undefined}
       numbers={{
         columns: ['version', xLabel, yLabel, 'at probability'],
         rows: series.flatMap((s) => thin(s.points, 25).map((p) => [s.name, num(p.x), num(p.y), pct(p.threshold)])),
@@ -126,7 +151,6 @@ export function CurveChart({ title, description, series, xLabel, yLabel, diagona
             isAnimationActive={false}
           />
         ))}
-        {series.length > 1 && <Legend wrapperStyle={{ fontSize: 11 }} />}
       </LineChart>
     </ChartFigure>
   );
@@ -139,6 +163,10 @@ export function LossChart({ curve, totalRounds, bestRound, title = 'Loss per rou
     <ChartFigure
       title={title}
       description="Exponential loss after each boosting round: training (solid) and validation (dashed)."
+      legend={[
+        { label: 'training', className: 'text-brand', line: true },
+        ...(hasValidation ? [{ label: 'validation', className: 'text-risk-6', line: true, dash: '6 3' }] : []),
+      ]}
       numbers={{ columns: ['round', 'training loss', 'validation loss'], rows: thin(curve).map((p) => [p.round, num(p.trainLoss, 4), num(p.validationLoss, 4)]) }}
     >
       <LineChart responsive data={curve} style={{ width: '100%', height: HEIGHT }} margin={{ top: 8, right: 12, bottom: 16, left: 4 }}>
@@ -147,9 +175,8 @@ export function LossChart({ curve, totalRounds, bestRound, title = 'Loss per rou
         <YAxis type="number" domain={['auto', 'auto']} tick={tick} stroke="currentColor" width={44} tickFormatter={(v: number) => v.toFixed(2)} />
         <Tooltip formatter={(v) => num(Number(v), 4)} labelFormatter={(v) => `round ${v}`} />
         {bestRound ? <ReferenceLine x={bestRound} strokeDasharray="3 3" className="stroke-control" label={{ value: 'kept', fontSize: 10, fill: 'currentColor' }} /> : null}
-        <Line name="training" dataKey="trainLoss" dot={false} strokeWidth={2} className="stroke-brand" stroke="currentColor" isAnimationActive={false} />
-        {hasValidation && <Line name="validation" dataKey="validationLoss" dot={false} strokeWidth={2} strokeDasharray="6 3" className="stroke-risk-6" stroke="currentColor" isAnimationActive={false} />}
-        <Legend wrapperStyle={{ fontSize: 11 }} />
+        <Line name="training" dataKey="trainLoss" dot={false} strokeWidth={2} className="text-brand" stroke="currentColor" isAnimationActive={false} />
+        {hasValidation && <Line name="validation" dataKey="validationLoss" dot={false} strokeWidth={2} strokeDasharray="6 3" className="text-risk-6" stroke="currentColor" isAnimationActive={false} />}
       </LineChart>
     </ChartFigure>
   );
@@ -170,6 +197,10 @@ export function ClassHistogramChart({ title, description, hist, format = (x: num
     <ChartFigure
       title={title}
       description={description ?? 'Share of each class per bin: fraud (dark) and legitimate (light).'}
+      legend={[
+        { label: 'legitimate', className: 'bg-control' },
+        { label: 'fraud', className: 'bg-risk-6' },
+      ]}
       numbers={{ columns: ['bin', 'fraud rows', 'legitimate rows'], rows: data.map((d) => [d.bin, d.nf, d.nl]) }}
     >
       <BarChart responsive data={data} style={{ width: '100%', height: HEIGHT }} margin={{ top: 8, right: 12, bottom: 4, left: 4 }} barGap={0}>
@@ -179,7 +210,6 @@ export function ClassHistogramChart({ title, description, hist, format = (x: num
         <Tooltip formatter={(v) => pct(Number(v))} />
         <Bar name="legitimate" dataKey="legitimate" className="fill-control" isAnimationActive={false} />
         <Bar name="fraud" dataKey="fraud" className="fill-risk-6" isAnimationActive={false} />
-        <Legend wrapperStyle={{ fontSize: 11 }} />
       </BarChart>
     </ChartFigure>
   );
@@ -200,7 +230,7 @@ export function ReliabilityChart({ bins }: { bins: ReliabilityBin[] }) {
         <YAxis type="number" domain={[0, 1]} tick={tick} stroke="currentColor" width={36} />
         <ReferenceLine segment={[{ x: 0, y: 0 }, { x: 1, y: 1 }]} strokeDasharray="3 3" className="stroke-control" />
         <Tooltip formatter={(v) => pct(Number(v))} />
-        <Line dataKey="y" name="observed" strokeWidth={2} className="stroke-brand" stroke="currentColor" dot={{ r: 3 }} isAnimationActive={false} />
+        <Line dataKey="y" name="observed" strokeWidth={2} className="text-brand" stroke="currentColor" dot={{ r: 3 }} isAnimationActive={false} />
       </LineChart>
     </ChartFigure>
   );
@@ -218,7 +248,7 @@ export function ImportanceChart({ importance }: { importance: { feature: string;
       <BarChart responsive layout="vertical" data={data} style={{ width: '100%', height: Math.max(120, data.length * 20 + 30) }} margin={{ top: 4, right: 12, bottom: 4, left: 4 }}>
         <CartesianGrid strokeDasharray="2 4" className="stroke-border" horizontal={false} />
         <XAxis type="number" tick={tick} stroke="currentColor" tickFormatter={(v: number) => `${Math.round(v * 100)}%`} />
-        <YAxis type="category" dataKey="feature" tick={tick} stroke="currentColor" width={150} />
+        <YAxis type="category" dataKey="feature" tick={tick} stroke="currentColor" width={150} interval={0} />
         <Tooltip formatter={(v) => pct(Number(v))} />
         <Bar dataKey="share" name="share" className="fill-brand" isAnimationActive={false} />
       </BarChart>
@@ -266,11 +296,11 @@ export function StepFunctionChart({ fn }: { fn: StepFunction }) {
     >
       <LineChart responsive data={data} style={{ width: '100%', height: 160 }} margin={{ top: 8, right: 12, bottom: 4, left: 4 }}>
         <CartesianGrid strokeDasharray="2 4" className="stroke-border" />
-        <XAxis type="number" dataKey="x" domain={[left, right]} tick={tick} stroke="currentColor" tickFormatter={(v: number) => (Math.abs(v) >= 1000 ? `${(v / 1000).toFixed(1)}k` : v.toFixed(1))} />
+        <XAxis type="number" dataKey="x" domain={[left, right]} tick={tick} stroke="currentColor" tickFormatter={(v: number) => compact.format(v)} />
         <YAxis tick={tick} stroke="currentColor" width={40} tickFormatter={(v: number) => v.toFixed(1)} />
         <ReferenceLine y={0} className="stroke-control" />
         <Tooltip formatter={(v) => num(Number(v))} labelFormatter={(v) => `x = ${num(Number(v), 2)}`} />
-        <Line type="stepAfter" dataKey="g" name="g(x)" strokeWidth={2} dot={false} className="stroke-brand" stroke="currentColor" isAnimationActive={false} />
+        <Line type="stepAfter" dataKey="g" name="g(x)" strokeWidth={2} dot={false} className="text-brand" stroke="currentColor" isAnimationActive={false} />
       </LineChart>
     </ChartFigure>
   );
@@ -283,6 +313,10 @@ export function PsiHistoryChart({ reports }: { reports: DriftReport[] }) {
     <ChartFigure
       title="PSI over time"
       description={`Score (solid) and the most shifted feature (dashed) against the champion's training rows; above ${PSI_FLAG} is flagged.`}
+      legend={[
+        { label: 'score', className: 'text-brand', line: true },
+        { label: 'largest feature', className: 'text-risk-6', line: true, dash: '6 3' },
+      ]}
       numbers={{ columns: ['day', 'version', 'score PSI', 'largest feature PSI'], rows: data.map((d) => [d.at, d.version, num(d.score), num(d.maxFeature)]) }}
     >
       <LineChart responsive data={data} style={{ width: '100%', height: HEIGHT }} margin={{ top: 8, right: 12, bottom: 4, left: 4 }}>
@@ -292,9 +326,8 @@ export function PsiHistoryChart({ reports }: { reports: DriftReport[] }) {
         <ReferenceLine y={0.1} strokeDasharray="2 2" className="stroke-control" label={{ value: 'watch', fontSize: 10, fill: 'currentColor', position: 'insideTopLeft' }} />
         <ReferenceLine y={PSI_FLAG} strokeDasharray="4 2" className="stroke-danger" label={{ value: 'act', fontSize: 10, fill: 'currentColor', position: 'insideTopLeft' }} />
         <Tooltip formatter={(v) => num(Number(v))} />
-        <Line name="score" dataKey="score" strokeWidth={2} className="stroke-brand" stroke="currentColor" dot={{ r: 2 }} isAnimationActive={false} />
-        <Line name="largest feature" dataKey="maxFeature" strokeWidth={2} strokeDasharray="6 3" className="stroke-risk-6" stroke="currentColor" dot={{ r: 2 }} isAnimationActive={false} />
-        <Legend wrapperStyle={{ fontSize: 11 }} />
+        <Line name="score" dataKey="score" strokeWidth={2} className="text-brand" stroke="currentColor" dot={{ r: 2 }} isAnimationActive={false} />
+        <Line name="largest feature" dataKey="maxFeature" strokeWidth={2} strokeDasharray="6 3" className="text-risk-6" stroke="currentColor" dot={{ r: 2 }} isAnimationActive={false} />
       </LineChart>
     </ChartFigure>
   );
@@ -307,6 +340,11 @@ export function CoverageChart({ weeks }: { weeks: CoverageWeek[] }) {
     <ChartFigure
       title="Label coverage by week"
       description="Labelled transactions per week of the transaction: fraud (dark) on legitimate (light); the line is the share of all transactions that carry a label."
+      legend={[
+        { label: 'legitimate', className: 'bg-control' },
+        { label: 'fraud', className: 'bg-risk-6' },
+        { label: 'share labelled', className: 'text-brand', line: true },
+      ]}
       numbers={{ columns: ['week of', 'transactions', 'labelled', 'fraud', 'legitimate', 'share'], rows: weeks.map((w) => [day(w.weekStart), w.transactions, w.labelled, w.fraud, w.legitimate, pct(w.share)]) }}
     >
       <ComposedChart responsive data={data} style={{ width: '100%', height: HEIGHT }} margin={{ top: 8, right: 4, bottom: 4, left: 4 }}>
@@ -317,8 +355,7 @@ export function CoverageChart({ weeks }: { weeks: CoverageWeek[] }) {
         <Tooltip />
         <Bar yAxisId="n" stackId="l" dataKey="legitimate" name="legitimate" className="fill-control" isAnimationActive={false} />
         <Bar yAxisId="n" stackId="l" dataKey="fraud" name="fraud" className="fill-risk-6" isAnimationActive={false} />
-        <Line yAxisId="share" dataKey="share" name="share labelled" strokeWidth={2} className="stroke-brand" stroke="currentColor" dot={{ r: 2 }} isAnimationActive={false} />
-        <Legend wrapperStyle={{ fontSize: 11 }} />
+        <Line yAxisId="share" dataKey="share" name="share labelled" strokeWidth={2} className="text-brand" stroke="currentColor" dot={{ r: 2 }} isAnimationActive={false} />
       </ComposedChart>
     </ChartFigure>
   );
@@ -330,8 +367,13 @@ export function DelayChart({ delay }: { delay: LabelDelay }) {
   return (
     <ChartFigure
       title="Label delay"
-      description={`Fraud labels reported since ${day(delay.since)}, by days from the transaction: dispositions (light), chargebacks (dark), other sources (hatched grey). Median ${delay.medianDays ?? '–'} d, 90th percentile ${delay.p90Days ?? '–'} d.`}
+      description={`Fraud labels reported since ${day(delay.since)}, by days from the transaction: dispositions (light), chargebacks (dark), other sources (grey). Median ${delay.medianDays ?? '–'} d, 90th percentile ${delay.p90Days ?? '–'} d.`}
       numbers={{ columns: ['days', 'disposition', 'chargeback', 'other'], rows: data.map((d) => [d.range, d.disposition, d.chargeback, d.other]) }}
+      legend={[
+        { label: 'disposition', className: 'bg-risk-2' },
+        { label: 'chargeback', className: 'bg-risk-6' },
+        { label: 'other', className: 'bg-control' },
+      ]}
     >
       <BarChart responsive data={data} style={{ width: '100%', height: HEIGHT }} margin={{ top: 8, right: 12, bottom: 4, left: 4 }}>
         <CartesianGrid strokeDasharray="2 4" className="stroke-border" vertical={false} />
@@ -341,7 +383,6 @@ export function DelayChart({ delay }: { delay: LabelDelay }) {
         <Bar stackId="d" dataKey="disposition" name="disposition" className="fill-risk-2" isAnimationActive={false} />
         <Bar stackId="d" dataKey="chargeback" name="chargeback" className="fill-risk-6" isAnimationActive={false} />
         <Bar stackId="d" dataKey="other" name="other" className="fill-control" isAnimationActive={false} />
-        <Legend wrapperStyle={{ fontSize: 11 }} />
       </BarChart>
     </ChartFigure>
   );

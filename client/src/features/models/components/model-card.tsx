@@ -96,7 +96,7 @@ export function ModelCard({ id }: { id: number }) {
           investigate. It ranks and explains; it does not decide. Each score comes with reason codes: the features that moved it most, in raw units.
         </p>
         <p className="mt-1 text-sm">
-          Method: {v.training.bestRound} boosted decision stumps (AdaBoost as coordinate descent on the exponential loss, shrinkage {String(v.params?.shrinkage ?? '–')}),
+          Method: {v.training.bestRound} boosted decision stumps (AdaBoost as coordinate descent on the exponential loss, shrinkage {v.training.shrinkage}),
           class-weighted start, Platt scaling fitted on the validation rows{v.calibration ? ` (a = ${num(v.calibration.a)}, b = ${num(v.calibration.b)})` : ''}.
         </p>
       </section>

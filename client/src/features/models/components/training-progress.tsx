@@ -51,7 +51,8 @@ export function TrainingProgress({ runId, canCancel }: { runId: number; canCance
   if (error || !run) return <p className="text-sm text-danger">This run could not be loaded.</p>;
   const { round, totalRounds, trainLoss, validationLoss } = run.progress;
   const done = isFinished(run.status);
-  const share = totalRounds > 0 ? Math.min(1, round / totalRounds) : 0;
+  // Early stopping ends a run before its budget: a finished run is a full bar.
+  const share = run.status === 'completed' ? 1 : totalRounds > 0 ? Math.min(1, round / totalRounds) : 0;
   return (
     <section aria-labelledby={`run-${run.id}-title`} className="flex flex-col gap-2 rounded border border-border bg-surface p-3">
       <header className="flex flex-wrap items-baseline gap-x-3 gap-y-1">

@@ -61,7 +61,6 @@ function ScheduleForm({ view, editable }: { view: TrainingScheduleView; editable
         <TextField
           label="Cron pattern (minute hour day month weekday)"
           placeholder="0 2 * * *"
-          className="font-mono"
           error={errors.cron?.message}
           {...register('cron')}
         />
