@@ -23,7 +23,7 @@
  * (and with whatever else runs on it); run a few times (`--runs 3`) and read the medians.
  */
 import path from 'node:path';
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, readFileSync } from 'node:fs';
 import { parseArgs } from 'node:util';
 import autocannon from 'autocannon';
 import { QueryTypes } from 'sequelize';
@@ -47,6 +47,44 @@ import {
 } from '../reliability/harness';
 
 type Payload = Record<string, unknown> & { id: string };
+
+/** CPU seconds (user + system) a process has used so far, from /proc (Linux; clock ticks of 1/100 s). */
+function cpuSeconds(pid: number | undefined): number {
+  if (pid === undefined) return Number.NaN;
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    return (Number(f[11]) + Number(f[12])) / 100;
+  } catch {
+    return Number.NaN;
+  }
+}
+
+/** Where the CPU went during a phase: each process of the stack and this one, and the whole machine. */
+function cpuMeter(stack: Stack) {
+  const procs = (): [string, number | undefined][] => [
+    ['mariadb', stack.mariadb.pid],
+    ['redis', stack.redis.pid],
+    ['web', stack.web.handle.pid],
+    ...stack.workers.map((w): [string, number | undefined] => [w.name, w.handle.pid]),
+    ['load generator', process.pid],
+  ];
+  const machine = () => {
+    const [, ...t] = readFileSync('/proc/stat', 'utf8').split('\n')[0].trim().split(/\s+/).map(Number);
+    return { busy: (t[0] + t[1] + t[2] + t[5] + t[6]) / 100, all: t.slice(0, 8).reduce((a, b) => a + b, 0) / 100 };
+  };
+  const before = new Map(procs().map(([n, pid]) => [n, cpuSeconds(pid)]));
+  const m0 = machine();
+  const t0 = performance.now();
+  return () => {
+    const wall = (performance.now() - t0) / 1000;
+    const m1 = machine();
+    const parts = procs().map(([n, pid]) => `${n} ${(cpuSeconds(pid) - (before.get(n) ?? 0)).toFixed(1)}`);
+    const ours = procs().reduce((sum, [n, pid]) => sum + (cpuSeconds(pid) - (before.get(n) ?? 0)), 0);
+    const busy = m1.busy - m0.busy;
+    return `CPU s over ${wall.toFixed(1)} s: ${parts.join(', ')}; machine busy ${busy.toFixed(1)} of ${(m1.all - m0.all).toFixed(1)} (others ${(busy - ours).toFixed(1)})`;
+  };
+}
 
 interface Flags {
   seconds: number;
@@ -226,11 +264,13 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const batchLog = new ResponseLog();
   checks.push({ tag: batchTag, log: batchLog });
   const batchStartedAt = Date.now();
+  let meter = cpuMeter(stack);
   const batch = await autocannonBodies(stack, batchBodies, { connections: f.connections, seconds: f.seconds, log: batchLog, idsOf: batchItems.map((b) => b.map((t) => t.id)) });
   const accepted = batchLog.accepted().length;
   const acceptedPerS = accepted / batch.duration;
   say(`batch: ${accepted} accepted in ${batch.duration.toFixed(1)} s (${acceptedPerS.toFixed(0)}/s), answers ${JSON.stringify(batch.statusCodeStats)}, errors ${batch.errors}`);
   const drain = await waitUntilScored(stack.db, batchTag, accepted, 300_000);
+  say(`batch: ${meter()}`);
   const [sc] = await stack.db.sequelize.query<{ n: number; last: Date }>(
     'SELECT COUNT(*) AS n, MAX(s.scored_at) AS last FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
     { replacements: { p: `${batchTag}%` }, type: QueryTypes.SELECT },
@@ -251,6 +291,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const singleBodies = singleItems.map((items) => JSON.stringify(items[0]));
   const singleLog = new ResponseLog();
   checks.push({ tag: singleTag, log: singleLog });
+  meter = cpuMeter(stack);
   const single = await autocannonBodies(stack, singleBodies, {
     connections: f.singleConnections,
     seconds: singleSeconds,
@@ -260,6 +301,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const singlePerS = single['2xx'] / single.duration;
   say(`single: ${single['2xx']} 2xx in ${single.duration.toFixed(1)} s (${singlePerS.toFixed(0)} requests/s), p99 ${single.latency.p99} ms, answers ${JSON.stringify(single.statusCodeStats)}`);
   await waitUntilScored(stack.db, singleTag, singleLog.accepted().length, 300_000);
+  say(`single: ${meter()}`);
 
   // ── alerts at a steady rate ────────────────────────────────────────────
   const alertTag = `bpa${run}`;
@@ -268,6 +310,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const alertLog = new ResponseLog();
   checks.push({ tag: alertTag, log: alertLog });
   alerts.received.clear();
+  meter = cpuMeter(stack);
   let k = 0;
   const paced = await runLoad({
     baseUrl: stack.baseUrl,
@@ -281,6 +324,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
     maxInFlight: 256,
   });
   await waitUntilScored(stack.db, alertTag, alertLog.accepted().length, 120_000);
+  say(`alerts: ${meter()}`);
   await sleep(1_000);
   const alertLatencies: number[] = [];
   for (const [id, times] of alerts.received) {
@@ -306,6 +350,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const decisionLog = new ResponseLog();
   checks.push({ tag: decisionTag, log: decisionLog });
   let d = 0;
+  meter = cpuMeter(stack);
   const dec = await runLoad({
     baseUrl: stack.baseUrl,
     apiKey: stack.apiKey,
@@ -319,6 +364,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
     maxInFlight: 256,
   });
   const decisionRateAchieved = dec.sent / dec.seconds;
+  say(`decisions: ${meter()}`);
   say(`decisions: ${dec.sent} at ${decisionRateAchieved.toFixed(0)}/s, answers ${JSON.stringify(Object.fromEntries(decisionLog.http))}`);
 
   // ── accounting ──────────────────────────────────────────────────────────
@@ -372,7 +418,10 @@ export async function run(argv: string[]): Promise<void> {
     workers: f.workers,
     fastDb: !f.durableDb,
     bufferPoolMb: 512,
-    nodeArgs: f.profile ? (role, i) => ['--cpu-prof', `--cpu-prof-dir=${profileDir}`, `--cpu-prof-name=${role}-${i}-${Date.now()}.cpuprofile`] : undefined,
+    // Statements slower than 50 ms land in logs/mariadb-slow.log, to see what a phase waited on.
+    extraDbArgs: ['--slow-query-log=1', '--long-query-time=0.05', `--slow-query-log-file=${path.join(ROOT, '.data', 'bench', 'logs', 'mariadb-slow.log')}`],
+    // Node names each profile by pid and thread, so the main thread's is not overwritten by tsx's loader thread.
+    nodeArgs: f.profile ? (role, i) => ['--cpu-prof', `--cpu-prof-dir=${path.join(profileDir, `${role}-${i}`)}`] : undefined,
     seed: async (db, c) => {
       const redis = createRedis(c, { name: 'bench-seed' });
       try {

@@ -83,8 +83,20 @@ function tablesOf(model: Model): StepTable[] {
  * Explains one row `{ [featureName]: number | string | null | undefined }`:
  * the exact per-feature contributions, with the stumps behind each.
  */
+/** Each stump's threshold as text, once per model: formatting it per row and stump was most of the cost of explaining a row. */
+const thresholdTexts = new WeakMap<Model, string[]>();
+function thresholdTextsOf(model: Model): string[] {
+  let t = thresholdTexts.get(model);
+  if (!t) {
+    t = model.stumps.map((s) => (s.kind === 'numeric' && s.threshold !== null ? formatNumber(s.threshold) : ''));
+    thresholdTexts.set(model, t);
+  }
+  return t;
+}
+
 export function explainRow(model: Model, row: Row): Explanation {
   const contributions: Contribution[] = [];
+  const thresholds = thresholdTextsOf(model);
   let margin = 0;
   for (const table of tablesOf(model)) {
     const f = table.featureIndex;
@@ -104,8 +116,8 @@ export function explainRow(model: Model, row: Row): Explanation {
         g += e;
         let rule: string;
         if (s.threshold === null) rule = right ? `${s.feature} missing` : `${s.feature} present`;
-        else if (v !== v) rule = `${s.feature} missing (sent ${right ? 'above' : 'below'} ${formatNumber(s.threshold)})`;
-        else rule = `${s.feature} ${right ? '>' : '<='} ${formatNumber(s.threshold)}`;
+        else if (v !== v) rule = `${s.feature} missing (sent ${right ? 'above' : 'below'} ${thresholds[t]})`;
+        else rule = `${s.feature} ${right ? '>' : '<='} ${thresholds[t]}`;
         stumpEffects.push({ round: t + 1, effect: e, rule });
       });
       cond = numericCondition(table.feature, v, table.cuts);
