@@ -200,8 +200,8 @@ async function main(): Promise<number> {
     ...envFor('edgecase_e2e', 'edgecase_e2e', 'e2e'),
     E2E_BASE_URL: `http://127.0.0.1:${ports.web}`,
     // A smaller invented history than the demo's keeps the e2e seed (and its first training run) short.
-    DEMO_HISTORY_DAYS: process.env.DEMO_HISTORY_DAYS || '35',
-    DEMO_CARDHOLDERS: process.env.DEMO_CARDHOLDERS || '400',
+    DEMO_HISTORY_DAYS: process.env.DEMO_HISTORY_DAYS || '45',
+    DEMO_CARDHOLDERS: process.env.DEMO_CARDHOLDERS || '900',
   };
 
   const vitestProjects = VITEST_PROJECTS.filter((p) => selected.has(p));

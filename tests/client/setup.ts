@@ -1,8 +1,11 @@
 import '@testing-library/jest-dom/vitest';
-import { cleanup } from '@testing-library/react';
+import { cleanup, configure } from '@testing-library/react';
 import { afterEach, beforeEach, vi } from 'vitest';
 import { setCsrfToken } from '@/lib/api-client';
 import { resetFakeSockets } from './support/fake-socket';
+
+// Screens load lazily; on a loaded 2-core machine the default 1 s wait for them is too tight.
+configure({ asyncUtilTimeout: 5000 });
 
 // The shell opens a Socket.IO connection; tests drive a fake one instead of the network.
 vi.mock('socket.io-client', async () => {

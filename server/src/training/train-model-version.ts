@@ -32,6 +32,9 @@ export class TrainingCancelled extends Error {
   }
 }
 
+/** Fewest fraud rows the validation part must hold for Platt scaling to mean anything (common practice: a handful at least). */
+export const MIN_CALIBRATION_POSITIVES = 5;
+
 export interface TrainingRequest extends DatasetWindow {
   label: string;
   role: ModelRole;
@@ -114,7 +117,16 @@ export async function trainModelVersion(db: Database, req: TrainingRequest): Pro
   cancelled();
   req.onPhase?.('calibrating and evaluating');
   const raw = result.model;
-  const fit = calibratePlatt(compileModel(raw).scoreColumns(valid.set.columns), valid.set.labels);
+  // Platt scaling needs both classes among its rows; fraud is rare, so a short window's validation
+  // part can hold none. Then refuse to ship a model whose probabilities would be one constant.
+  const compiledRaw = compileModel(raw);
+  const fit = calibratePlatt(compiledRaw.scoreColumns(valid.set.columns), valid.set.labels);
+  if (fit.positives < MIN_CALIBRATION_POSITIVES || fit.positives === fit.n) {
+    throw new TrainingError(
+      'bad-data',
+      `The validation window holds ${fit.positives} confirmed fraud among ${fit.n} rows; calibration needs at least ${MIN_CALIBRATION_POSITIVES}. Widen the training window or wait for more labels.`,
+    );
+  }
   const model = withCalibration(raw, fit, 'validation');
   const testScores = scoreSet(model, test);
   const evaluation = evaluate(testScores, test.set.labels, {
