@@ -34,7 +34,13 @@ const GROUP_BELOW = 100;
 export async function acceptTransactions(
   d: IngestDeps,
   body: unknown,
-  meta: { source: TransactionSource; apiKeyId: number | null; now?: Date },
+  meta: {
+    source: TransactionSource;
+    apiKeyId: number | null;
+    now?: Date;
+    /** Called with the valid transactions once they are checked, before they are stored (work that can run beside the write). */
+    beforeStore?: (valid: NormalisedTransaction[]) => void;
+  },
 ): Promise<{ results: IngestItemResult[]; acceptedIds: number[]; batch: string | null; normalised: Map<string, NormalisedTransaction> }> {
   const now = meta.now ?? new Date();
   const parsed = parseIngestBody(body, { now });
@@ -63,6 +69,7 @@ export async function acceptTransactions(
   }
 
   const items = valid.map((v) => v.t);
+  if (items.length > 0) meta.beforeStore?.(items);
   const storeMeta = { source: meta.source, apiKeyId: meta.apiKeyId, receivedAt: now };
   // Small requests share a transaction and a scoring job with their concurrent neighbours; large ones go alone.
   const stored =

@@ -5,7 +5,8 @@ import type { Database } from '../db/database';
 import type { Config } from '../config/index';
 import { AppError } from '../lib/app-error';
 import { parseOrThrow } from '../lib/validate';
-import { featureRow } from '@shared/features/definitions';
+import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
+import type { NormalisedTransaction } from '@shared/api/transactions';
 import { isHighRiskMcc } from '@shared/reference/mcc';
 import type { ActiveModels } from '../scoring/active-models';
 import { scoreRowWith } from '../scoring/score-transactions';
@@ -28,6 +29,17 @@ const apiKey = (scope: string) => ({ kind: 'apiKey', scope }) as const;
 
 export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
   const d = { ...routeDeps, batcher: new IngestBatcher(routeDeps.db, routeDeps.scoring) };
+  const observe = (t: NormalisedTransaction) =>
+    d.velocity.observe(t.card.panHash, {
+      transactionId: t.externalId,
+      occurredAt: t.occurredAt,
+      amount: t.amount,
+      merchantRef: t.merchant.id,
+      merchantCountry: t.merchant.country,
+      lat: t.lat ?? null,
+      lon: t.lon ?? null,
+      deviceId: t.deviceId ?? null,
+    });
   return [
     {
       method: 'post',
@@ -62,7 +74,18 @@ export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
         if (!champion) throw AppError.unavailable('No champion model is active yet.', 10);
         const body = req.body && typeof req.body === 'object' && 'transactions' in req.body ? null : req.body;
         if (body === null) throw AppError.badRequest('A decision takes one transaction, not a batch.', [{ path: 'transactions', message: 'Send a single transaction object.' }]);
-        const { results, normalised } = await acceptTransactions(d, body, { source: 'decision', apiKeyId: req.apiKey?.id ?? null });
+        // The card's velocity state is read and updated while the transaction is being stored: the two
+        // round trips overlap instead of adding up. Observing is idempotent per transaction id, so a
+        // duplicate or a refused store leaves nothing counted twice.
+        let observed: Promise<VelocitySnapshot> | undefined;
+        const { results, normalised } = await acceptTransactions(d, body, {
+          source: 'decision',
+          apiKeyId: req.apiKey?.id ?? null,
+          beforeStore: ([t]) => {
+            observed = observe(t);
+            observed.catch(() => undefined);
+          },
+        });
         const r = results[0];
         if (!r || r.status === 'rejected') {
           throw AppError.badRequest('The transaction is not valid.', r && r.status === 'rejected' ? r.errors : []);
@@ -81,16 +104,7 @@ export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
           });
         }
         const t = normalised.get(r.id)!;
-        const snapshot = await d.velocity.observe(t.card.panHash, {
-          transactionId: t.externalId,
-          occurredAt: t.occurredAt,
-          amount: t.amount,
-          merchantRef: t.merchant.id,
-          merchantCountry: t.merchant.country,
-          lat: t.lat ?? null,
-          lon: t.lon ?? null,
-          deviceId: t.deviceId ?? null,
-        });
+        const snapshot = await (observed ?? observe(t));
         const row = featureRow(
           {
             amount: t.amount,
