@@ -284,7 +284,7 @@ export interface ClaimConflict {
 
 /** The caution shown near every decision that can hurt someone. */
 export const SCORE_CAUTION =
-  'The score is evidence, not a verdict. Decisions to block a card or report a customer stay with trained staff under your institution’s policy and local law.';
+  "The score is evidence, not a verdict. Decisions to block a card or report a customer stay with trained staff under your institution's policy and local law.";
 
 /** Socket events the queue listens to (payloads are small; the client refetches through the API). */
 export interface QueueAlertEvent {

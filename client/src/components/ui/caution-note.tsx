@@ -1,7 +1,8 @@
 import { cn } from '@/lib/cn';
+import { SCORE_CAUTION } from '@shared/api/cases';
 
-export const SCORE_CAUTION =
-  "The score is evidence, not a verdict. Decisions to block a card or report a customer stay with trained staff under your institution's policy and local law.";
+// One wording everywhere: the server, e-mails and screens share the same text.
+export { SCORE_CAUTION };
 
 /** The standing reminder beside every score-driven screen. Calm on purpose: it is read every shift. */
 export function CautionNote({ className }: { className?: string }) {
