@@ -58,8 +58,8 @@ function KeyRow({ k, onRevoke }: { k: AdminApiKey; onRevoke: (k: AdminApiKey) =>
         {k.revokedAt ? (
           <span className="text-muted">Revoked {formatDateTime(k.revokedAt)}</span>
         ) : (
-          <Button size="sm" variant="ghost" onClick={() => onRevoke(k)}>
-            Revoke {k.name}
+          <Button size="sm" variant="ghost" onClick={() => onRevoke(k)} aria-label={`Revoke ${k.name}`}>
+            Revoke
           </Button>
         )}
       </td>

@@ -154,8 +154,8 @@ function UserRow({ u, meId, onConfirm }: { u: AdminUser; meId: number; onConfirm
       <td className="px-3 py-1.5">
         <div className="flex flex-wrap gap-1">
           {(locked || u.failedLoginCount > 0) && (
-            <Button size="sm" disabled={unlock.isPending} onClick={() => unlock.mutate(u.id)}>
-              Unlock {u.displayName}
+            <Button size="sm" disabled={unlock.isPending} onClick={() => unlock.mutate(u.id)} aria-label={`Unlock ${u.displayName}`}>
+              Unlock
             </Button>
           )}
           {u.status === 'invited' && (
@@ -164,8 +164,8 @@ function UserRow({ u, meId, onConfirm }: { u: AdminUser; meId: number; onConfirm
             </Button>
           )}
           {u.status !== 'deactivated' && !me && (
-            <Button size="sm" variant="ghost" onClick={() => onConfirm({ kind: 'deactivate', user: u })}>
-              Deactivate {u.displayName}
+            <Button size="sm" variant="ghost" onClick={() => onConfirm({ kind: 'deactivate', user: u })} aria-label={`Deactivate ${u.displayName}`}>
+              Deactivate
             </Button>
           )}
         </div>

@@ -30,10 +30,10 @@ export function AlertVolumeChart({ hours, perHour }: { hours: AlertVolumeHour[];
           <YAxis allowDecimals={false} tick={tick} stroke="currentColor" width={32} />
           <Tooltip cursor={false} />
           <Legend wrapperStyle={{ fontSize: 11 }} />
-          <Bar dataKey="alerts" name="Alerts" className="fill-control" isAnimationActive={!reducedMotion} />
-          <Line dataKey="cases" name="New cases" type="stepAfter" className="stroke-text" strokeWidth={2} dot={false} isAnimationActive={!reducedMotion} />
+          <Bar dataKey="alerts" name="Alerts" fill="var(--ec-control)" isAnimationActive={!reducedMotion} />
+          <Line dataKey="cases" name="New cases" type="stepAfter" stroke="var(--ec-text)" strokeWidth={2} dot={false} isAnimationActive={!reducedMotion} />
           {perHour !== null && (
-            <ReferenceLine y={perHour} className="stroke-danger" strokeDasharray="6 3" label={{ value: 'capacity', position: 'insideTopRight', fontSize: 11, fill: 'currentColor' }} />
+            <ReferenceLine y={perHour} stroke="var(--ec-danger)" strokeDasharray="6 3" label={{ value: 'capacity', position: 'insideTopRight', fontSize: 11, fill: 'currentColor' }} />
           )}
         </ComposedChart>
       </div>

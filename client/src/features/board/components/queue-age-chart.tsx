@@ -32,7 +32,7 @@ export function QueueAgeChart({ buckets }: { buckets: QueueAgeBucket[] }) {
           <YAxis allowDecimals={false} tick={tick} stroke="currentColor" width={32} />
           <Tooltip cursor={false} />
           <Legend wrapperStyle={{ fontSize: 11 }} />
-          <Bar dataKey="within" name="Within SLA" stackId="age" className="fill-control" isAnimationActive={!reducedMotion} />
+          <Bar dataKey="within" name="Within SLA" stackId="age" fill="var(--ec-control)" isAnimationActive={!reducedMotion} />
           <Bar dataKey="past" name="Past SLA (hatched)" stackId="age" fill="url(#queue-age-past)" isAnimationActive={!reducedMotion} />
         </BarChart>
       </div>

@@ -56,15 +56,15 @@ function CurveChart({ curve, chosen }: { curve: ThresholdCurve; chosen: Threshol
         <YAxis yAxisId="share" orientation="right" domain={[0, 100]} tick={tick} stroke="currentColor" unit=" %" width={44} />
         <Tooltip formatter={(v) => (typeof v === 'number' ? v.toFixed(1) : v)} labelFormatter={(t) => `threshold ${Number(t).toFixed(0)} %`} />
         <Legend wrapperStyle={{ fontSize: 11 }} />
-        <Line yAxisId="day" dataKey="cases" name="Cases a day" className="stroke-text" strokeWidth={2} dot={false} isAnimationActive={!reducedMotion} />
-        <Line yAxisId="day" dataKey="alerts" name="Alerts a day" className="stroke-control" strokeDasharray="4 2" dot={false} isAnimationActive={!reducedMotion} />
-        <Line yAxisId="share" dataKey="precision" name="Precision (right)" className="stroke-link" strokeWidth={2} strokeDasharray="1 3" dot={false} connectNulls isAnimationActive={!reducedMotion} />
-        <Line yAxisId="share" dataKey="recall" name="Recall (right)" className="stroke-ok" strokeWidth={2} strokeDasharray="8 3" dot={false} connectNulls isAnimationActive={!reducedMotion} />
-        <ReferenceLine yAxisId="day" x={curve.current * 100} className="stroke-muted" strokeDasharray="3 3" label={{ value: 'now', position: 'top', fontSize: 11, fill: 'currentColor' }} />
+        <Line yAxisId="day" dataKey="cases" name="Cases a day" stroke="var(--ec-text)" strokeWidth={2} dot={false} isAnimationActive={!reducedMotion} />
+        <Line yAxisId="day" dataKey="alerts" name="Alerts a day" stroke="var(--ec-control)" strokeDasharray="4 2" dot={false} isAnimationActive={!reducedMotion} />
+        <Line yAxisId="share" dataKey="precision" name="Precision (right)" stroke="var(--ec-link)" strokeWidth={2} strokeDasharray="1 3" dot={false} connectNulls isAnimationActive={!reducedMotion} />
+        <Line yAxisId="share" dataKey="recall" name="Recall (right)" stroke="var(--ec-ok)" strokeWidth={2} strokeDasharray="8 3" dot={false} connectNulls isAnimationActive={!reducedMotion} />
+        <ReferenceLine yAxisId="day" x={curve.current * 100} stroke="var(--ec-muted)" strokeDasharray="3 3" label={{ value: 'now', position: 'top', fontSize: 11, fill: 'currentColor' }} />
         {chosen && (
           <>
-            <ReferenceLine yAxisId="day" x={chosen.threshold * 100} className="stroke-brand" strokeWidth={2} label={{ value: 'chosen', position: 'insideTopLeft', fontSize: 11, fill: 'currentColor' }} />
-            {chosen.point && <ReferenceDot yAxisId="day" x={chosen.point.threshold * 100} y={chosen.point.casesPerDay} r={5} className="fill-brand stroke-surface" />}
+            <ReferenceLine yAxisId="day" x={chosen.threshold * 100} stroke="var(--ec-brand)" strokeWidth={2} label={{ value: 'chosen', position: 'insideTopLeft', fontSize: 11, fill: 'currentColor' }} />
+            {chosen.point && <ReferenceDot yAxisId="day" x={chosen.point.threshold * 100} y={chosen.point.casesPerDay} r={5} fill="var(--ec-brand)" stroke="var(--ec-surface)" />}
           </>
         )}
       </LineChart>
