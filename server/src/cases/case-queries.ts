@@ -135,7 +135,13 @@ export async function listQueue(db: Database, q: QueueQuery, userId: number): Pr
   if (q.q) {
     const term = q.q.replace(/\s+/g, '');
     if (/^\d{4}$/.test(term)) {
-      where.push('(k.last4 = :term OR c.id = :termNum)');
+      // The cards first (index on last4), then their cases by card id: matching last4 through the join
+      // tested every open case. A last four shared by very many cards falls back to the join.
+      const cards = await db.sequelize.query<{ id: number }>('SELECT id FROM cards WHERE last4 = ? LIMIT 1001', { replacements: [term], type: QueryTypes.SELECT });
+      if (cards.length > 1000) where.push('(k.last4 = :term OR c.id = :termNum)');
+      else if (cards.length > 0) where.push('(c.card_id IN (:cardIds) OR c.id = :termNum)');
+      else where.push('c.id = :termNum');
+      rep.cardIds = cards.map((r) => Number(r.id));
       rep.term = term;
       rep.termNum = Number(term);
     } else if (/^\d{6}$/.test(term)) {
