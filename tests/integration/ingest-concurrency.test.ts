@@ -35,16 +35,25 @@ describe('concurrent batches on new cards', () => {
         cardPresent: true,
       }));
     const answers: string[] = [];
+    let refused = 0;
     await Promise.all(
       Array.from({ length: 4 }, async (_, s) => {
         for (let b = 0; b < 6; b += 1) {
-          const res = await request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).send({ transactions: batch(s, b) });
+          const body = { transactions: batch(s, b) };
+          // A 503 (deadlocks kept winning) stored nothing and is resent, as an upstream would; never a 500.
+          let res = await request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).send(body);
+          for (let attempt = 0; res.status === 503 && attempt < 5; attempt += 1) {
+            refused += 1;
+            res = await request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).send(body);
+          }
           expect(res.status).toBe(202);
           for (const r of res.body.results as { status: string }[]) answers.push(r.status);
         }
       }),
     );
     expect(answers.length).toBe(4 * 6 * 500);
+    // Refusals are the exception, not the way through.
+    expect(refused).toBeLessThan(6);
     expect(answers.every((a) => a === 'accepted')).toBe(true);
     const [{ n, cards }] = await ts.server.db.sequelize.query<{ n: number; cards: number }>(
       'SELECT COUNT(*) AS n, COUNT(DISTINCT card_id) AS cards FROM transactions WHERE external_id LIKE :p',

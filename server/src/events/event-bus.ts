@@ -21,7 +21,6 @@ export type DomainEvent =
       at: string;
     }
   | { type: 'case.changed'; caseId: number; status: string; assigneeId: number | null; previousAssigneeId?: number | null; at: string }
-  | { type: 'transaction.scored'; transactionId: number; externalId: string; probability: number; alerted: boolean; at: string }
   | { type: 'model.changed'; at: string }
   | { type: 'settings.changed'; at: string }
   | ({ type: 'training.progress' } & TrainingProgressEvent)

@@ -167,9 +167,8 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
     }
   });
 
-  for (const o of outcomes) {
-    events.push({ type: 'transaction.scored', transactionId: o.transactionId, externalId: o.externalId, probability: o.probability, alerted: o.alerted, at: new Date().toISOString() });
-  }
+  // Only alerts are announced: an event per scored transaction went to every subscriber (web servers
+  // and workers), each parsing it, and nobody listened to it.
   await publishEvents(ctx.redis, ctx.redisPrefix, events).catch(() => undefined);
   return outcomes;
 }
