@@ -134,7 +134,9 @@ async function generate(db: Database, o: { cases: number; closed: number; transa
     `UPDATE cases c JOIN (SELECT a.case_id, COUNT(*) AS n, MAX(a.probability) AS p, SUM(t.amount_minor) AS amount, MIN(t.occurred_at) AS first_at, MAX(t.occurred_at) AS last_at
                          FROM alerts a JOIN transactions t ON t.id = a.transaction_id GROUP BY a.case_id) x ON x.case_id = c.id
      SET c.alert_count = x.n, c.highest_probability = x.p, c.highest_margin = x.p * 2 - 1, c.amount_at_risk_minor = x.amount,
-         c.first_alert_at = x.first_at, c.last_alert_at = x.last_at, c.sla_due_at = x.last_at + INTERVAL 8 HOUR - INTERVAL c.id % 600 MINUTE`,
+         c.first_alert_at = x.first_at, c.last_alert_at = x.last_at,
+         -- A working queue: due times from 8 hours ago (breached) to 40 hours ahead, about one in six breached.
+         c.sla_due_at = UTC_TIMESTAMP(3) + INTERVAL (CAST((c.id * 37) % 2880 AS SIGNED) - 480) MINUTE`,
   );
   await sql(db, 'SET SESSION unique_checks = 1');
   await sql(db, 'ANALYZE TABLE cases, alerts, transactions, transaction_scores, transaction_features, cards');
@@ -293,7 +295,7 @@ export async function run(argv: string[]): Promise<void> {
     }
 
     console.log('\nEXPLAIN of the queue queries (rows = rows the plan expects to read):');
-    for (const [name, q] of variants.slice(0, 9).concat(variants.slice(10, 12))) {
+    for (const [name, q] of variants) {
       console.log(`  ${name}`);
       for (const l of await explainQueue(stack.db, q)) console.log(l);
     }
