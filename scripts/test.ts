@@ -63,6 +63,8 @@ Options:
   --skip=a,b      run everything except these parts
   --rebuild       build the client even if its sources did not change
   --redis-aof     run the test Redis with its append-only file on
+  --files=a,b     pass these file filters to Vitest (e.g. --only=integration
+                  --files=tests/integration/access.test.ts)
   --help          this text
   (also accepted as "--only a,b" and "--skip a,b")
 
@@ -91,8 +93,8 @@ interface StepOutcome {
   note?: string;
 }
 
-function parseArgs(argv: string[]): { selected: Set<Selectable>; rebuild: boolean; redisAof: boolean } | 'help' {
-  const opts = { selected: new Set<Selectable>(SELECTABLE), rebuild: false, redisAof: false };
+function parseArgs(argv: string[]): { selected: Set<Selectable>; rebuild: boolean; redisAof: boolean; files: string[] } | 'help' {
+  const opts = { selected: new Set<Selectable>(SELECTABLE), rebuild: false, redisAof: false, files: [] as string[] };
   const list = (v: string | undefined, flag: string): Selectable[] => {
     const parts = (v ?? '').split(',').map((s) => s.trim()).filter(Boolean);
     const bad = parts.filter((p) => !(SELECTABLE as readonly string[]).includes(p));
@@ -105,6 +107,7 @@ function parseArgs(argv: string[]): { selected: Set<Selectable>; rebuild: boolea
     if (flag === '--help' || flag === '-h') return 'help';
     else if (flag === '--rebuild') opts.rebuild = true;
     else if (flag === '--redis-aof') opts.redisAof = true;
+    else if (flag === '--files') opts.files = (inline ?? argv[++i] ?? '').split(',').map((f) => f.trim()).filter(Boolean);
     else if (flag === '--only' || flag === '--skip') {
       const value = inline ?? argv[++i];
       const parts = list(value, flag);
@@ -173,7 +176,7 @@ async function main(): Promise<number> {
     console.log(HELP);
     return 0;
   }
-  const { selected, rebuild, redisAof } = parsed;
+  const { selected, rebuild, redisAof, files } = parsed;
   const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
   const log = tagged('test', 'green');
   const bin = (name: string) => path.join(root, 'node_modules', '.bin', name);
@@ -310,7 +313,7 @@ async function main(): Promise<number> {
           const info = await tool(
             'vitest',
             bin('vitest'),
-            ['run', ...projectArgs, '--reporter=default', '--reporter=json', `--outputFile.json=${report}`],
+            ['run', ...projectArgs, ...files, '--reporter=default', '--reporter=json', `--outputFile.json=${report}`],
             s,
             vitestEnv,
           );
