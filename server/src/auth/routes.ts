@@ -28,7 +28,7 @@ export function authRoutes(d: AuthDeps): RouteSpec[] {
   d.passport.use(
     'local',
     new LocalStrategy({ usernameField: 'email', passwordField: 'password', passReqToCallback: true, session: true }, (req, email, password, done) => {
-      signIn(d.db, d.config, email, password, { ip: req.ip ?? null, userAgent: req.get('user-agent') ?? null })
+      signIn(d.db, d.config, email, password, { ip: req.ip ?? null, userAgent: req.get('user-agent') ?? null }, d.limiter)
         .then((r) => (r.ok ? done(null, r.user) : done(null, false, r as never)))
         .catch(done);
     }),
@@ -66,6 +66,13 @@ export function authRoutes(d: AuthDeps): RouteSpec[] {
         const ip = req.ip ?? 'unknown';
         const wait = await d.limiter.blockedFor(ip);
         if (wait > 0) {
+          await auditRequest(d.db, req, {
+            action: 'auth.sign_in',
+            actorLabel: req.body.email,
+            targetType: 'user',
+            outcome: 'denied',
+            details: { reason: 'rate limited', retryAfterSeconds: wait },
+          });
           throw new AppError({
             status: 429,
             code: 'rate_limited',

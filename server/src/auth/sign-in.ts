@@ -23,11 +23,32 @@ export interface SignInContext {
 }
 
 /**
+ * Failure counts and lock-outs for e-mails without a usable account (none,
+ * invited, deactivated), kept outside the user table. They lock out after the
+ * same number of failures and for the same time as a real account, so the
+ * answers never tell an attacker which e-mails have one.
+ */
+export interface UnknownAccountLocks {
+  /** Seconds the e-mail stays locked, 0 when it is not. */
+  accountLockedFor(email: string): Promise<number>;
+  /** Counts a failure; seconds of the lock-out it started, 0 when none. */
+  recordAccountFailure(email: string): Promise<number>;
+}
+
+/**
  * The sign-in story: find the account, refuse while it is locked, check the
  * password, count failures toward a lock-out, and audit every outcome. The
- * answer never says whether the email exists.
+ * answer never says whether the email exists: an e-mail without a usable
+ * account is refused, counted and locked out like one with an account.
  */
-export async function signIn(db: Database, c: Config, email: string, password: string, ctx: SignInContext): Promise<SignInResult> {
+export async function signIn(
+  db: Database,
+  c: Config,
+  email: string,
+  password: string,
+  ctx: SignInContext,
+  unknownAccounts: UnknownAccountLocks,
+): Promise<SignInResult> {
   const user = await findUserByEmail(db, email);
   const audit = (outcome: 'success' | 'failure' | 'denied', u: UserRecord | null, details: Record<string, unknown>) =>
     appendAudit(db, {
@@ -44,9 +65,16 @@ export async function signIn(db: Database, c: Config, email: string, password: s
     });
 
   if (!user || user.status !== 'active' || !user.passwordHash) {
+    const reason = user ? `account ${user.status}` : 'unknown account';
+    const lockedFor = await unknownAccounts.accountLockedFor(email);
+    if (lockedFor > 0) {
+      await audit('denied', user, { reason: 'locked out', account: reason, retryAfterSeconds: lockedFor });
+      return { ok: false, reason: 'account_locked', retryAfterSeconds: lockedFor };
+    }
     await verifyPassword(await dummyPasswordHash(), password);
-    await audit('failure', user, { reason: user ? `account ${user.status}` : 'unknown account' });
-    return { ok: false, reason: 'invalid_credentials' };
+    const lockedNow = await unknownAccounts.recordAccountFailure(email);
+    await audit('failure', user, { reason, lockedOut: lockedNow > 0 });
+    return lockedNow > 0 ? { ok: false, reason: 'account_locked', retryAfterSeconds: lockedNow } : { ok: false, reason: 'invalid_credentials' };
   }
 
   const now = Date.now();
