@@ -27,6 +27,9 @@
  * histograms then change by (ratio_y - 1) times the histogram of those rows
  * alone, H_new = H_old + (ratio_y - 1) H_small, which is exact; histograms are
  * rebuilt from all rows every `rebuildEvery` rounds so rounding cannot drift.
+ * The histogram passes walk four units at once (kernels.ts); with a
+ * HistogramExecutor, units are split over threads for the histogram work and
+ * rows for the scan of the chosen unit, with the same sums in the same order.
  *
  * Missing values: a numeric stump sends missing values to whichever side
  * gives the larger |edge| (both are candidates; on a tie the left side). If no
@@ -41,7 +44,7 @@
  */
 import { applyBinning, codeCount, fitBinning, type Binning } from './binning';
 import { TrainingError } from './errors';
-import { addSmallSide, buildHistogram, type HistogramExecutor } from './kernels';
+import { runScan, runUnits, type HistogramExecutor } from './kernels';
 import type { Model, Stump, TrainingSummary } from './model-schema';
 import { MODEL_FORMAT, MODEL_SCHEMA_VERSION } from './model-schema';
 import { parseTrainOptions, type TrainOptions, type TrainOptionsInput } from './options';
@@ -267,62 +270,6 @@ function describe(binning: Binning, c: Candidate) {
 // Hot loops, kept as small top-level functions so the JIT sees one array type
 // each (Uint8Array codes in quantile mode) and optimises them in isolation.
 
-/**
- * One pass over the chosen column: F_i += alpha h(x_i), count training errors,
- * collect the rows on the small side into idx. Returns [m, mNeg, errors] in out.
- */
-function scanChosen(
-  col: CodeArray,
-  hv: Float64Array,
-  isSmall: Uint8Array,
-  Ft: Float64Array,
-  idx: Int32Array,
-  nNeg: number,
-  n: number,
-  out: Int32Array,
-): void {
-  let m = 0;
-  let errors = 0;
-  for (let i = 0; i < nNeg; i++) {
-    const c = col[i];
-    const v = Ft[i] + hv[c];
-    Ft[i] = v;
-    errors += v > 0 ? 1 : 0;
-    idx[m] = i;
-    m += isSmall[c];
-  }
-  const mNeg = m;
-  for (let i = nNeg; i < n; i++) {
-    const c = col[i];
-    const v = Ft[i] + hv[c];
-    Ft[i] = v;
-    errors += v <= 0 ? 1 : 0;
-    idx[m] = i;
-    m += isSmall[c];
-  }
-  out[0] = m;
-  out[1] = mNeg;
-  out[2] = errors;
-}
-
-/** Rescales the small side's stored weights; delta_j = w_old (ratio_y - 1). */
-function rescaleSmall(idx: Int32Array, w: Float64Array, delta: Float64Array, m: number, mNeg: number, ratioN: number, ratioP: number): void {
-  const rn = ratioN - 1;
-  const rp = ratioP - 1;
-  for (let j = 0; j < mNeg; j++) {
-    const i = idx[j];
-    const wo = w[i];
-    w[i] = wo * ratioN;
-    delta[j] = wo * rn;
-  }
-  for (let j = mNeg; j < m; j++) {
-    const i = idx[j];
-    const wo = w[i];
-    w[i] = wo * ratioP;
-    delta[j] = wo * rp;
-  }
-}
-
 function scaleRange(w: Float64Array, from: number, to: number, g: number): void {
   for (let i = from; i < to; i++) w[i] *= g;
 }
@@ -508,10 +455,20 @@ function boost(
   // Arrays other threads read or write come from the executor's allocator (shared memory).
   const exec = hooks?.histograms;
   const f64 = (len: number) => (exec ? new Float64Array(exec.allocate(8 * len) as ArrayBuffer) : new Float64Array(len));
+  const i32 = (len: number) => (exec ? new Int32Array(exec.allocate(4 * len) as ArrayBuffer) : new Int32Array(len));
   const w = f64(n).fill(1);
-  const Ft = new Float64Array(n);
-  const idx = exec ? new Int32Array(exec.allocate(4 * n) as ArrayBuffer) : new Int32Array(n);
+  const Ft = f64(n);
+  const idx = i32(n);
   const delta = f64(n);
+  // Row segments, one per thread: legitimate rows split evenly, fraud rows with the last segment.
+  const T = exec?.threads ?? 1;
+  const segs = i32(2 * T);
+  for (let k = 0; k < T; k++) {
+    segs[2 * k] = Math.floor((k * nNeg) / T);
+    segs[2 * k + 1] = k === T - 1 ? n : Math.floor(((k + 1) * nNeg) / T);
+  }
+  const segCounts = i32(3 * T);
+  const params = f64(3);
 
   const units = planUnits(nCodes, codes, opts.bundleFeatures);
   const unitOf = new Int32Array(F);
@@ -552,13 +509,16 @@ function boost(
     }
   };
 
-  const stride = Math.max(256, ...unitN);
-  const tmp = new Float64Array(4 * stride);
+  const maxJ = Math.max(...unitN);
+  const hvJ = f64(maxJ);
+  const isSmall = exec ? new Uint8Array(exec.allocate(maxJ) as ArrayBuffer) : new Uint8Array(maxJ);
   const allUnits = units.map((_, u) => u);
-  const local = exec ? exec.attach({ codes: unitCodes, hist, nCodes: unitN, w, idx, delta, nNeg, n, stride }) : allUnits;
+  const local = exec
+    ? exec.attach({ codes: unitCodes, hist, nCodes: unitN, w, idx, delta, Ft, hv: hvJ, isSmall, segs, counts: segCounts, params, nNeg, n })
+    : allUnits;
   const rebuild = () => {
-    exec?.begin('rebuild', 0, 0);
-    for (const u of local) buildHistogram(unitCodes[u], w, nNeg, n, hist[u], unitN[u], tmp, stride);
+    exec?.begin('rebuild');
+    runUnits(1, local, unitCodes, hist, unitN, w, idx, delta, nNeg, n, segs, segCounts);
     exec?.end();
   };
   const absorbScales = () => {
@@ -567,7 +527,6 @@ function boost(
     gN = 1;
     gP = 1;
   };
-  const scanOut = new Int32Array(3);
   const search: SearchState = { bestAbs: -1, found: false, any: false, f: 0, k: 0, missingRight: false, polarity: 1 };
   rebuild();
 
@@ -669,26 +628,28 @@ function boost(
     const cu = unitOf[cand.f];
     const J = unitN[cu];
     const dec = decode[cand.f];
-    const isSmall = new Uint8Array(J);
-    const hvJ = new Float64Array(J);
     for (let j = 0; j < J; j++) {
       const b = dec ? dec[j] : j;
       isSmall[j] = (side[b] === 1) === smallRight ? 1 : 0;
       hvJ[j] = hv[b];
     }
-    scanChosen(unitCodes[cu], hvJ, isSmall, Ft, idx, nNeg, n, scanOut);
-    const m = scanOut[0];
-    const mNeg = scanOut[1];
-    const errors = scanOut[2];
+    // Each thread scans its row segment and rescales that segment's small side.
+    params[0] = cu;
+    params[1] = ratioN;
+    params[2] = ratioP;
+    exec?.begin('scan');
+    runScan(0, unitCodes, hvJ, isSmall, Ft, w, idx, delta, nNeg, segs, segCounts, params);
+    exec?.end();
+    let errors = 0;
+    for (let k = 0; k < T; k++) errors += segCounts[3 * k + 2];
 
     // --- Weight update of the small side and the exact histogram correction.
-    rescaleSmall(idx, w, delta, m, mNeg, ratioN, ratioP);
     if (opts.histogramUpdate === 'rebuild' || t % opts.rebuildEvery === 0) {
       absorbScales();
       rebuild();
     } else {
-      exec?.begin('update', m, mNeg);
-      for (const u of local) addSmallSide(hist[u], unitCodes[u], idx, delta, m, mNeg, unitN[u], tmp, stride);
+      exec?.begin('update');
+      runUnits(2, local, unitCodes, hist, unitN, w, idx, delta, nNeg, n, segs, segCounts);
       exec?.end();
     }
     if (!Number.isFinite(gP) || !Number.isFinite(gN) || !(gP > 0) || !(gN > 0)) {
