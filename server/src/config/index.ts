@@ -58,8 +58,8 @@ const schema = z.object({
   SESSION_SECRET: z.string().min(16).default(DEMO_SESSION_SECRET),
   /** Idle timeout of a staff session, in minutes. */
   SESSION_IDLE_MINUTES: z.coerce.number().int().min(1).max(24 * 60).default(30),
-  /** Set the Secure flag on cookies (turn on behind TLS). */
-  COOKIE_SECURE: bool.default(false),
+  /** Set the Secure flag on cookies: on by default (and required) in production mode, off by default otherwise (plain-HTTP demo). */
+  COOKIE_SECURE: bool.optional(),
   /** Trust X-Forwarded-* from a proxy in front (hop count). */
   TRUST_PROXY: z.coerce.number().int().min(0).max(10).default(0),
   /** Failed sign-ins per account before a lock-out. */
@@ -84,7 +84,7 @@ const schema = z.object({
   LABEL_DELAY_DAYS: z.coerce.number().int().min(0).max(180).default(21),
 });
 
-export type Config = z.infer<typeof schema> & { publicUrl: string };
+export type Config = Omit<z.infer<typeof schema>, 'COOKIE_SECURE'> & { COOKIE_SECURE: boolean; publicUrl: string };
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const parsed = schema.safeParse(env);
@@ -101,8 +101,11 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     if (bad.length > 0) {
       throw new Error(`Invalid configuration: production mode refuses the demo defaults of ${bad.join(', ')}`);
     }
+    // A session cookie without Secure can be read off any plain-HTTP request (OWASP ASVS 4.0 V3.4.1).
+    if (c.COOKIE_SECURE === false) throw new Error('Invalid configuration: production mode needs Secure cookies; remove COOKIE_SECURE=false and serve over TLS');
   }
-  return { ...c, publicUrl: c.PUBLIC_URL ?? `http://${c.HOST === '0.0.0.0' ? 'localhost' : c.HOST}:${c.PORT}` };
+  const cookieSecure = c.COOKIE_SECURE ?? c.EDGECASE_MODE === 'production';
+  return { ...c, COOKIE_SECURE: cookieSecure, publicUrl: c.PUBLIC_URL ?? `http://${c.HOST === '0.0.0.0' ? 'localhost' : c.HOST}:${c.PORT}` };
 }
 
 let cached: Config | undefined;
