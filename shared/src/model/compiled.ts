@@ -89,82 +89,66 @@ export function stepIndex(cuts: Float64Array, v: number): number {
 }
 
 /**
- * out[r] += g_f(col[r]) over a padded step table (P - 1 cuts, +Inf padded).
- * The search adds the comparison result times the step instead of branching:
- * score data is unsorted, so a branch per step would mispredict half the time.
+ * out[r] += g_f(col[r]) for one numeric feature: `cuts` holds the P - 1 used
+ * thresholds padded with +Inf (P a power of two), `vals` the P step values
+ * followed by the value for a missing input. Up to 7 cuts the step index is
+ * a sum of independent comparisons with the cuts held in locals (#cuts < v);
+ * larger tables use a branch-free binary search. NaN compares false with
+ * every cut, and its slot is picked arithmetically (no unpredictable branch).
  */
-function addNumericSteps(
-  out: Float64Array,
-  col: Float64Array,
-  cuts: Float64Array,
-  values: Float64Array,
-  base: number,
-  P: number,
-  miss: number,
-): void {
+function addNumericSteps(out: Float64Array, col: Float64Array, cuts: Float64Array, vals: Float64Array, P: number): void {
   const n = out.length;
   if (P === 1) {
-    const v0 = values[base];
     for (let r = 0; r < n; r++) {
       const v = col[r];
-      out[r] += v !== v ? miss : v0;
+      out[r] += vals[+(v !== v)];
     }
     return;
   }
-  const c = cuts;
-  const b = base;
-  // Unrolled for the common table sizes (most features use few thresholds).
   if (P === 2) {
+    const c0 = cuts[0];
     for (let r = 0; r < n; r++) {
       const v = col[r];
-      out[r] += v !== v ? miss : values[b + +(c[b] < v)];
+      const p = +(c0 < v);
+      out[r] += vals[p + +(v !== v) * (2 - p)];
     }
   } else if (P === 4) {
+    const c0 = cuts[0];
+    const c1 = cuts[1];
+    const c2 = cuts[2];
     for (let r = 0; r < n; r++) {
       const v = col[r];
-      if (v !== v) {
-        out[r] += miss;
-        continue;
-      }
-      let p = +(c[b + 1] < v) << 1;
-      p += +(c[b + p] < v);
-      out[r] += values[b + p];
+      const p = +(c0 < v) + +(c1 < v) + +(c2 < v);
+      out[r] += vals[p + +(v !== v) * (4 - p)];
     }
   } else if (P === 8) {
+    const c0 = cuts[0];
+    const c1 = cuts[1];
+    const c2 = cuts[2];
+    const c3 = cuts[3];
+    const c4 = cuts[4];
+    const c5 = cuts[5];
+    const c6 = cuts[6];
     for (let r = 0; r < n; r++) {
       const v = col[r];
-      if (v !== v) {
-        out[r] += miss;
-        continue;
-      }
-      let p = +(c[b + 3] < v) << 2;
-      p += +(c[b + p + 1] < v) << 1;
-      p += +(c[b + p] < v);
-      out[r] += values[b + p];
+      const p = +(c0 < v) + +(c1 < v) + +(c2 < v) + +(c3 < v) + +(c4 < v) + +(c5 < v) + +(c6 < v);
+      out[r] += vals[p + +(v !== v) * (8 - p)];
     }
   } else if (P === 16) {
     for (let r = 0; r < n; r++) {
       const v = col[r];
-      if (v !== v) {
-        out[r] += miss;
-        continue;
-      }
-      let p = +(c[b + 7] < v) << 3;
-      p += +(c[b + p + 3] < v) << 2;
-      p += +(c[b + p + 1] < v) << 1;
-      p += +(c[b + p] < v);
-      out[r] += values[b + p];
+      let p = +(cuts[7] < v) << 3;
+      p += +(cuts[p + 3] < v) << 2;
+      p += +(cuts[p + 1] < v) << 1;
+      p += +(cuts[p] < v);
+      out[r] += vals[p + +(v !== v) * (16 - p)];
     }
   } else {
     for (let r = 0; r < n; r++) {
       const v = col[r];
-      if (v !== v) {
-        out[r] += miss;
-        continue;
-      }
       let p = 0;
-      for (let step = P >> 1; step > 0; step >>= 1) p += +(c[b + p + step - 1] < v) * step;
-      out[r] += values[b + p];
+      for (let step = P >> 1; step > 0; step >>= 1) p += +(cuts[p + step - 1] < v) * step;
+      out[r] += vals[p + +(v !== v) * (P - p)];
     }
   }
 }
@@ -207,6 +191,14 @@ export function compileModel(model: Model): CompiledScorer {
     // Padded value slots are never reached (their cut is +Inf), fill for safety.
     for (let j = t.values.length; j < padLen[i]; j++) flatValues[cutOff[i] + j] = t.values[t.values.length - 1];
     missingValues[i] = t.missing;
+  });
+  // Per-feature copies for the column scorer: P - 1 padded cuts, and P values followed by the missing value.
+  const cutTables = numeric.map((_, i) => flatCuts.slice(cutOff[i], cutOff[i] + padLen[i] - 1));
+  const valueTables = numeric.map((_, i) => {
+    const v = new Float64Array(padLen[i] + 1);
+    v.set(flatValues.subarray(cutOff[i], cutOff[i] + padLen[i]));
+    v[padLen[i]] = missingValues[i];
+    return v;
   });
   const catMaps = categorical.map((t) => categoryIndex({ name: t.feature, kind: 'categorical', categories: t.categories, pooledCategories: 0 }));
   const sumAlpha = totalAlpha(model);
@@ -251,7 +243,7 @@ export function compileModel(model: Model): CompiledScorer {
           continue;
         }
         if (!(col instanceof Float64Array)) throw new ScoringInputError(`Feature "${t.feature}" is numeric: its column must be a Float64Array`);
-        addNumericSteps(out, col, flatCuts, flatValues, cutOff[i], padLen[i], missingValues[i]);
+        addNumericSteps(out, col, cutTables[i], valueTables[i], padLen[i]);
       }
       for (let i = 0; i < categorical.length; i++) {
         const t = categorical[i];
