@@ -135,6 +135,11 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   });
 
   const api = Router();
+  // API answers carry authenticated data: no cache may keep them (OWASP ASVS 4.0 V8.2.1). A route may say otherwise for itself.
+  api.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
   api.use(express.json({ limit: '2mb' }));
   // Upstream systems authenticate by API key only: no session is read or created on their routes.
   const staff = Router();
