@@ -15,6 +15,7 @@ import {
   serializeModel,
   stagedScores,
   stepFunctions,
+  topContributions,
   trainModel,
   type Model,
 } from '../../shared/src/model';
@@ -44,6 +45,18 @@ describe('explanations', () => {
       }
     }
   }, 60_000);
+
+  it('topContributions gives explainRow\'s first k contributions, value, number and text alike', () => {
+    // A consistency check between the hot-path reasons and the full explanation (same sums, same order).
+    for (const m of models) {
+      for (let i = 0; i < m.n; i += 7) {
+        const row = rowOf(m.columns, i);
+        const full = explainRow(m.model, row).contributions.slice(0, 6);
+        const top = topContributions(m.model, row, 6);
+        expect(top).toEqual(full.map((c) => ({ feature: c.feature, featureIndex: c.featureIndex, value: c.value, contribution: c.contribution, text: c.text })));
+      }
+    }
+  });
 
   it('E[F] is the mean margin over the training rows', () => {
     for (const m of models) {

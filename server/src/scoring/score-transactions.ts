@@ -2,7 +2,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
-import { explainRow, type Row } from '@shared/model/index';
+import { topContributions, type Row } from '@shared/model/index';
 import { isHighRiskMcc } from '@shared/reference/mcc';
 import type { LoadedModel } from '../model-registry/model-repository';
 import { priorityFor, type AlertingSettings } from '../settings/settings-repository';
@@ -66,9 +66,7 @@ export function scoreRowWith(m: LoadedModel, row: Row) {
   const margin = m.compiled.score(row);
   const normalizedMargin = m.compiled.totalAlpha > 0 ? margin / m.compiled.totalAlpha : 0;
   const probability = m.compiled.probability(margin);
-  const reasons = explainRow(m.model, row)
-    .contributions.slice(0, REASONS_KEPT)
-    .map((c) => ({ feature: c.feature, value: c.value, contribution: c.contribution, text: c.text }));
+  const reasons = topContributions(m.model, row, REASONS_KEPT).map((c) => ({ feature: c.feature, value: c.value, contribution: c.contribution, text: c.text }));
   return { margin, normalizedMargin, probability, reasons };
 }
 
@@ -259,7 +257,7 @@ async function raiseAlert(ctx: ScoringContext, t: Transaction, o: ScoreOutcome, 
     type: QueryTypes.INSERT,
     transaction: t,
   });
-  const [c] = await db.sequelize.query<{ status: string; assignee_id: number | null }>('SELECT status, assignee_id FROM cases WHERE id = ?', {
+  const [c] = await db.sequelize.query<{ status: string; assignee_id: number | null; team_id: number | null }>('SELECT status, assignee_id, team_id FROM cases WHERE id = ?', {
     replacements: [caseId],
     type: QueryTypes.SELECT,
     transaction: t,
@@ -273,7 +271,8 @@ async function raiseAlert(ctx: ScoringContext, t: Transaction, o: ScoreOutcome, 
     externalId: o.externalId,
     probability: o.probability,
     status: c?.status ?? 'new',
-    assigneeId: c?.assignee_id ?? null,
+    assigneeId: c?.assignee_id == null ? null : Number(c.assignee_id),
+    teamId: c?.team_id == null ? null : Number(c.team_id),
     at: new Date().toISOString(),
   };
 }

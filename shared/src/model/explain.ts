@@ -60,13 +60,24 @@ export function formatSigned(x: number): string {
   return `${x >= 0 ? '+' : '-'}${Math.abs(x).toFixed(2)}`;
 }
 
-function numericCondition(name: string, v: number, cuts: Float64Array): string {
+function numericCondition(name: string, v: number, cuts: Float64Array, cutText: (j: number) => string = (j) => formatNumber(cuts[j])): string {
   if (v !== v) return `${name} missing`;
   if (cuts.length === 0) return `${name} ${formatNumber(v)} present`;
   const j = stepIndex(cuts, v);
-  if (j === 0) return `${name} ${formatNumber(v)} <= ${formatNumber(cuts[0])}`;
-  if (j === cuts.length) return `${name} ${formatNumber(v)} > ${formatNumber(cuts[j - 1])}`;
-  return `${name} ${formatNumber(v)} in (${formatNumber(cuts[j - 1])}, ${formatNumber(cuts[j])}]`;
+  if (j === 0) return `${name} ${formatNumber(v)} <= ${cutText(0)}`;
+  if (j === cuts.length) return `${name} ${formatNumber(v)} > ${cutText(j - 1)}`;
+  return `${name} ${formatNumber(v)} in (${cutText(j - 1)}, ${cutText(j)}]`;
+}
+
+/** The cuts of every numeric step table as text, once per model. */
+const cutTexts = new WeakMap<StepTable, string[]>();
+function cutTextsOf(t: StepTable & { kind: 'numeric' }): string[] {
+  let c = cutTexts.get(t);
+  if (!c) {
+    c = Array.from(t.cuts, formatNumber);
+    cutTexts.set(t, c);
+  }
+  return c;
 }
 
 const tableCache = new WeakMap<Model, StepTable[]>();
@@ -152,6 +163,44 @@ export function explainRow(model: Model, row: Row): Explanation {
   }
   contributions.sort((a, b) => Math.abs(b.contribution) - Math.abs(a.contribution) || a.featureIndex - b.featureIndex);
   return { margin, expectedMargin: model.baseline.expectedF, contributions };
+}
+
+/** A reason code: one feature's contribution with its text, without the stumps behind it. */
+export type Reason = Pick<Contribution, 'feature' | 'featureIndex' | 'value' | 'contribution' | 'text'>;
+
+/**
+ * The k largest contributions of a row, exactly as explainRow ranks and
+ * words them, for the scoring hot path: g_f comes from the feature's step
+ * table (the same sums of alpha_t h_t in the same order) instead of a walk
+ * over every stump, and only the k kept contributions are put into words.
+ */
+export function topContributions(model: Model, row: Row, k: number): Reason[] {
+  const tables = tablesOf(model);
+  const cs: { t: StepTable; value: number | string | null; code: number; c: number }[] = [];
+  for (const table of tables) {
+    const mean = model.baseline.featureMeans[table.featureIndex];
+    if (table.kind === 'numeric') {
+      const v = numericValue(row, table.feature);
+      const g = v !== v ? table.missing : table.values[stepIndex(table.cuts, v)];
+      cs.push({ t: table, value: v !== v ? null : v, code: 0, c: g - mean });
+    } else {
+      const v = categoricalValue(row, table.feature);
+      const C = table.categories.length;
+      const idx = v === null ? C + 1 : table.categories.indexOf(v);
+      const code = idx < 0 ? C : idx;
+      cs.push({ t: table, value: v, code, c: table.values[code] - mean });
+    }
+  }
+  cs.sort((a, b) => Math.abs(b.c) - Math.abs(a.c) || a.t.featureIndex - b.t.featureIndex);
+  return cs.slice(0, Math.max(0, k)).map(({ t, value, code, c }) => {
+    let cond: string;
+    if (t.kind === 'numeric') {
+      const texts = cutTextsOf(t);
+      cond = numericCondition(t.feature, value === null ? NaN : (value as number), t.cuts, (j) => texts[j]);
+    }
+    else cond = value === null ? `${t.feature} missing` : `${t.feature} = ${value}${code === t.categories.length ? ' (other)' : ''}`;
+    return { feature: t.feature, featureIndex: t.featureIndex, value, contribution: c, text: `${cond}: ${formatSigned(c)}` };
+  });
 }
 
 /** A feature's step function g_f (and its training mean) for plotting. */

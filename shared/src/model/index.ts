@@ -7,7 +7,7 @@ export { trainModel, TIE_TOLERANCE, EPS_CLIP, type RoundTrace, type TrainResult,
 export { parseModel, serializeModel, modelSchema, MODEL_FORMAT, MODEL_SCHEMA_VERSION, type Model, type Stump, type PlattCalibration } from './model-schema';
 export { scoreRow, scoreBatch, stagedMargins, stagedScores, totalAlpha, probabilityFromMargin, type Score, type BatchScores } from './score';
 export { compileModel, buildStepTables, type CompiledScorer, type StepTable } from './compiled';
-export { explainRow, stepFunctions, featureImportance, formatNumber, type Explanation, type Contribution, type StepFunction } from './explain';
+export { explainRow, topContributions, stepFunctions, featureImportance, formatNumber, type Explanation, type Contribution, type Reason as ReasonCode, type StepFunction } from './explain';
 export { calibratePlatt, withCalibration, type PlattFit } from './calibrate';
 export {
   rocAuc,
