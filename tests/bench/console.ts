@@ -166,7 +166,8 @@ async function explainQueue(db: Database, query: Record<string, string>): Promis
   const before = options.logging;
   options.logging = (s: string) => captured.push(s.replace(/^Executing \([^)]*\): /, ''));
   try {
-    await listQueue(db, queueQuerySchema.parse(query), 1);
+    // As an investigator in no team: the queue with the team condition, as the timed investigator sees it.
+    await listQueue(db, queueQuerySchema.parse(query), { userId: 1, anyTeam: false, teamIds: [] });
   } finally {
     options.logging = before;
   }

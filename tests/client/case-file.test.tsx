@@ -62,6 +62,18 @@ describe('Case file', { timeout: 20_000 }, () => {
     expect(within(panel('Timeline')).getByText('case.claim')).toBeInTheDocument();
   });
 
+  it('says which team the case was routed to', async () => {
+    stubFetch(caseRoutes({ 'GET /api/cases/7': { status: 200, body: caseDetail(7, { case: { ...caseSummary(7), team: { id: 2, name: 'Travel desk' } } }) } }));
+    await openCase();
+    expect(screen.getByText('Team').nextElementSibling).toHaveTextContent('Travel desk');
+  });
+
+  it('says when the case is in the shared queue', async () => {
+    stubFetch(caseRoutes());
+    await openCase();
+    expect(screen.getByText('Team').nextElementSibling).toHaveTextContent('Shared queue');
+  });
+
   it('switches between the case’s alerts, highest first', async () => {
     const low = alertDetail({ alertId: 40, probability: 0.41, reasons: [{ feature: 'hour_utc', value: 3, contribution: 0.2, text: 'hour_utc 3.00 <= 5.50: +0.20' }] });
     const high = alertDetail({ alertId: 41, probability: 0.93 });

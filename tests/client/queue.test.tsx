@@ -42,6 +42,18 @@ async function openQueue(path = '/queue') {
 }
 
 describe('Queue table', { timeout: 20_000 }, () => {
+  it('names the team each case was routed to, and the shared queue for the rest', async () => {
+    const cases = [caseSummary(21, { team: { id: 4, name: 'Online desk' } }), caseSummary(22)];
+    stubFetch(queueRoutes(() => cases));
+    await openQueue();
+
+    expect(screen.getByRole('columnheader', { name: 'Team' })).toBeInTheDocument();
+    expect(within(row(21)!).getByText('Online desk')).toHaveAttribute('title', 'Routed to Online desk');
+    expect(within(row(22)!).getByText('Shared')).toBeInTheDocument();
+    expect(within(row(22)!).queryByText('Online desk')).toBeNull();
+    expect(row(21)).toHaveAccessibleName(/team Online desk$/);
+  });
+
   it('renders the server page: score with word and margin, money, card fragment, SLA in words, and the match count', async () => {
     const cases = [
       caseSummary(11, { slaDueAt: '2031-05-06T09:55:00.000Z', priority: 'urgent' }),
@@ -205,6 +217,7 @@ describe('Queue table', { timeout: 20_000 }, () => {
       probability: 0.97,
       status: 'new',
       assigneeId: null,
+      teamId: null,
       at: '2031-05-06T10:00:05.000Z',
     };
     act(() => currentSocket().serverEmit('queue:alert', event));

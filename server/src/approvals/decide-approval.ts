@@ -87,6 +87,7 @@ export async function decideApproval(d: CaseDeps, req: Request, approvalId: numb
       status: after!.status,
       assigneeId: after!.assignee_id === null ? null : Number(after!.assignee_id),
       previousAssigneeId: outcome.previousAssigneeId,
+      teamId: after!.team_id === null ? null : Number(after!.team_id),
       at: new Date().toISOString(),
     },
   ]).catch(() => undefined);

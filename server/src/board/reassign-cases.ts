@@ -98,6 +98,7 @@ export async function reassignCases(d: BoardDeps, req: Request, input: z.output<
     status: r.status,
     assigneeId: to,
     previousAssigneeId: r.assignee_id === null ? null : Number(r.assignee_id),
+    teamId: r.team_id === null ? null : Number(r.team_id),
     at: now,
   }));
   await publishEvents(d.redis, d.config.REDIS_PREFIX, events).catch(() => undefined);

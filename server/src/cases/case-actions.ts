@@ -13,6 +13,7 @@ import type { OutgoingEvents } from '../outgoing/outgoing-events';
 import { dispositionSchema, SCORE_CAUTION, type CaseSummary } from '@shared/api/cases';
 import type { z } from 'zod';
 import { getCaseRow, toSummary, type CaseRow } from './case-queries';
+import { caseViewer, requireVisibleCase, visibleCaseSql, type CaseViewer } from './case-access';
 import { approvalLimitMinor, readSupervisionSettings } from '../settings/supervision-settings';
 import { demoCardholderContact } from '../demo/demo-directory';
 
@@ -26,14 +27,37 @@ export interface CaseDeps {
 
 const OPEN = new Set(['new', 'claimed', 'waiting_cardholder', 'escalated', 'awaiting_approval']);
 
-async function changed(d: CaseDeps, caseId: number, status: string, assigneeId: number | null, previousAssigneeId?: number | null) {
+const idOrNull = (v: number | null) => (v === null ? null : Number(v));
+
+async function changed(d: CaseDeps, after: CaseRow, previousAssigneeId?: number | null) {
   await publishEvents(d.redis, d.config.REDIS_PREFIX, [
-    { type: 'case.changed', caseId, status, assigneeId, previousAssigneeId, at: new Date().toISOString() },
+    {
+      type: 'case.changed',
+      caseId: Number(after.id),
+      status: after.status,
+      assigneeId: idOrNull(after.assignee_id),
+      previousAssigneeId,
+      teamId: idOrNull(after.team_id),
+      at: new Date().toISOString(),
+    },
   ]).catch(() => undefined);
 }
 
-async function mustGet(d: CaseDeps, id: number, t?: Transaction): Promise<CaseRow> {
-  const row = await getCaseRow(d.db, id, { forUpdate: !!t, transaction: t });
+/**
+ * The case for an action, locked when inside a transaction, and only if the
+ * caller may see it. Actions call `requireVisibleCase` first (which audits a
+ * refusal outside any transaction); this check closes the gap to a
+ * reassignment in between.
+ */
+async function mustGet(d: CaseDeps, req: Request, id: number, t?: Transaction): Promise<CaseRow> {
+  const row = await getCaseRow(d.db, id, { forUpdate: !!t, transaction: t, viewer: await caseViewer(d.db, req) });
+  if (!row) throw AppError.notFound('No such case.');
+  return row;
+}
+
+/** The case after an action the caller was allowed: read whatever the caller may see now (releasing may hand it back to a team). */
+async function reread(d: CaseDeps, id: number): Promise<CaseRow> {
+  const row = await getCaseRow(d.db, id);
   if (!row) throw AppError.notFound('No such case.');
   return row;
 }
@@ -54,11 +78,14 @@ function assertMayWork(req: Request, row: CaseRow) {
  */
 export async function claimCase(d: CaseDeps, req: Request, id: number): Promise<CaseSummary> {
   const me = req.user!.id;
+  await requireVisibleCase(d.db, req, id, 'case.claim');
+  const visible = visibleCaseSql(await caseViewer(d.db, req));
   const [, affected] = (await d.db.sequelize.query(
-    "UPDATE cases SET assignee_id = :me, status = 'claimed', claimed_at = UTC_TIMESTAMP(3), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id AND status = 'new' AND (assignee_id IS NULL OR assignee_id = :me)",
-    { replacements: { me, id }, type: QueryTypes.UPDATE },
+    `UPDATE cases c SET c.assignee_id = :me, c.status = 'claimed', c.claimed_at = UTC_TIMESTAMP(3), c.version = c.version + 1, c.updated_at = UTC_TIMESTAMP(3)
+     WHERE c.id = :id AND c.status = 'new' AND (c.assignee_id IS NULL OR c.assignee_id = :me) AND ${visible.sql}`,
+    { replacements: { ...visible.replacements, me, id }, type: QueryTypes.UPDATE },
   )) as unknown as [unknown, number];
-  const row = await mustGet(d, id);
+  const row = await mustGet(d, req, id);
   if (affected !== 1 && Number(row.assignee_id) !== me) {
     await auditRequest(d.db, req, { action: 'case.claim', targetType: 'case', targetId: id, outcome: 'denied', details: { heldBy: row.assignee_name } });
     throw new AppError({
@@ -70,14 +97,15 @@ export async function claimCase(d: CaseDeps, req: Request, id: number): Promise<
   }
   if (affected === 1) {
     await auditRequest(d.db, req, { action: 'case.claim', targetType: 'case', targetId: id, outcome: 'success' });
-    await changed(d, id, row.status, me, null);
+    await changed(d, row, null);
   }
   return toSummary(row);
 }
 
 export async function releaseCase(d: CaseDeps, req: Request, id: number): Promise<CaseSummary> {
+  await requireVisibleCase(d.db, req, id, 'case.release');
   const row = await d.db.sequelize.transaction(async (t) => {
-    const r = await mustGet(d, id, t);
+    const r = await mustGet(d, req, id, t);
     assertMayWork(req, r);
     await d.db.sequelize.query(
       "UPDATE cases SET assignee_id = NULL, claimed_at = NULL, status = IF(status IN ('claimed', 'waiting_cardholder'), 'new', status), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = ?",
@@ -86,14 +114,15 @@ export async function releaseCase(d: CaseDeps, req: Request, id: number): Promis
     return r;
   });
   await auditRequest(d.db, req, { action: 'case.release', targetType: 'case', targetId: id, outcome: 'success' });
-  const after = await mustGet(d, id);
-  await changed(d, id, after.status, null, row.assignee_id);
+  const after = await reread(d, id);
+  await changed(d, after, idOrNull(row.assignee_id));
   return toSummary(after);
 }
 
 export async function setCaseStatus(d: CaseDeps, req: Request, id: number, status: 'claimed' | 'waiting_cardholder'): Promise<CaseSummary> {
+  await requireVisibleCase(d.db, req, id, 'case.status');
   await d.db.sequelize.transaction(async (t) => {
-    const r = await mustGet(d, id, t);
+    const r = await mustGet(d, req, id, t);
     assertMayWork(req, r);
     if (r.status === 'awaiting_approval') throw AppError.conflict('The case waits for a supervisor’s approval.', 'awaiting_approval');
     await d.db.sequelize.query(
@@ -102,14 +131,15 @@ export async function setCaseStatus(d: CaseDeps, req: Request, id: number, statu
     );
   });
   await auditRequest(d.db, req, { action: 'case.status', targetType: 'case', targetId: id, outcome: 'success', details: { status } });
-  const after = await mustGet(d, id);
-  await changed(d, id, after.status, after.assignee_id === null ? null : Number(after.assignee_id));
+  const after = await reread(d, id);
+  await changed(d, after);
   return toSummary(after);
 }
 
 export async function escalateCase(d: CaseDeps, req: Request, id: number, reason: string): Promise<CaseSummary> {
+  await requireVisibleCase(d.db, req, id, 'case.escalate');
   await d.db.sequelize.transaction(async (t) => {
-    const r = await mustGet(d, id, t);
+    const r = await mustGet(d, req, id, t);
     assertMayWork(req, r);
     await d.db.sequelize.query(
       "UPDATE cases SET status = 'escalated', escalation_reason = :reason, claimed_at = COALESCE(claimed_at, UTC_TIMESTAMP(3)), assignee_id = COALESCE(assignee_id, :me), version = version + 1, updated_at = UTC_TIMESTAMP(3) WHERE id = :id",
@@ -117,13 +147,14 @@ export async function escalateCase(d: CaseDeps, req: Request, id: number, reason
     );
   });
   await auditRequest(d.db, req, { action: 'case.escalate', targetType: 'case', targetId: id, outcome: 'success', details: { reason } });
-  const after = await mustGet(d, id);
-  await changed(d, id, after.status, after.assignee_id === null ? null : Number(after.assignee_id));
+  const after = await reread(d, id);
+  await changed(d, after);
   return toSummary(after);
 }
 
 export async function addNote(d: CaseDeps, req: Request, id: number, text: string) {
-  const row = await mustGet(d, id);
+  await requireVisibleCase(d.db, req, id, 'case.note');
+  const row = await mustGet(d, req, id);
   if (!OPEN.has(row.status) && req.user!.role !== 'supervisor') throw AppError.conflict('This case is closed.', 'case_closed');
   const now = new Date();
   const [noteId] = (await d.db.sequelize.query('INSERT INTO case_notes (case_id, author_id, text, created_at) VALUES (?, ?, ?, ?)', {
@@ -136,7 +167,8 @@ export async function addNote(d: CaseDeps, req: Request, id: number, text: strin
 
 /** E-mails the cardholder through the mail queue; the message is kept on the case with its delivery status. */
 export async function contactCardholder(d: CaseDeps, req: Request, id: number, input: { subject: string; message: string }) {
-  const row = await mustGet(d, id);
+  await requireVisibleCase(d.db, req, id, 'case.contact');
+  const row = await mustGet(d, req, id);
   assertMayWork(req, row);
   const [holder] = await d.db.sequelize.query<{ email: string | null; display_name: string | null }>('SELECT email, display_name FROM cardholders WHERE ref = ?', {
     replacements: [row.cardholder_ref],
@@ -162,8 +194,9 @@ export async function contactCardholder(d: CaseDeps, req: Request, id: number, i
 
 /** Blocks or unblocks the card, and tells the upstream system through the outbox (exactly the same transaction). */
 export async function setCardStatus(d: CaseDeps, req: Request, id: number, input: { action: 'block' | 'unblock'; reason: string }) {
+  await requireVisibleCase(d.db, req, id, `card.${input.action}`);
   const result = await d.db.sequelize.transaction(async (t) => {
-    const row = await mustGet(d, id, t);
+    const row = await mustGet(d, req, id, t);
     assertMayWork(req, row);
     const status = input.action === 'block' ? 'blocked' : 'active';
     await d.db.sequelize.query('UPDATE cards SET status = ?, status_changed_at = UTC_TIMESTAMP(3), updated_at = UTC_TIMESTAMP(3) WHERE id = ?', {
@@ -292,8 +325,9 @@ export async function disposeCase(
   input: DispositionOutput,
 ): Promise<{ case: CaseSummary; nextCaseId: number | null; approval: { id: number; status: 'pending'; limit: number } | null }> {
   const me = req.user!;
+  await requireVisibleCase(d.db, req, id, 'case.disposition');
   const approval = await d.db.sequelize.transaction(async (t) => {
-    const row = await mustGet(d, id, t);
+    const row = await mustGet(d, req, id, t);
     assertMayWork(req, row);
     if (row.status === 'awaiting_approval') throw AppError.conflict('The case waits for a supervisor’s approval.', 'awaiting_approval');
     if (Number(row.version) !== input.version) throw AppError.conflict('The case changed since you opened it. Reload and decide again.', 'stale_case');
@@ -338,21 +372,22 @@ export async function disposeCase(
     );
     return { id: Number(approvalId), status: 'pending' as const, limit: policy.approvalLimit! };
   });
-  const after = await mustGet(d, id);
-  await changed(d, id, after.status, after.assignee_id === null ? null : Number(after.assignee_id));
-  return { case: toSummary(after), nextCaseId: await nextCaseFor(d.db, me.id), approval };
+  const after = await reread(d, id);
+  await changed(d, after);
+  return { case: toSummary(after), nextCaseId: await nextCaseFor(d.db, await caseViewer(d.db, req)), approval };
 }
 
-/** The next case for a person: their own open claimed case first, else the top unassigned new one. */
-export async function nextCaseFor(db: Database, userId: number): Promise<number | null> {
+/** The next case for a person: their own open claimed case first, else the top unassigned new one they may see. */
+export async function nextCaseFor(db: Database, viewer: CaseViewer): Promise<number | null> {
   const [mine] = await db.sequelize.query<{ id: number }>(
     "SELECT id FROM cases WHERE is_open = 1 AND assignee_id = ? AND status IN ('claimed', 'new') ORDER BY priority_rank DESC, sla_due_at ASC LIMIT 1",
-    { replacements: [userId], type: QueryTypes.SELECT },
+    { replacements: [viewer.userId], type: QueryTypes.SELECT },
   );
   if (mine) return Number(mine.id);
+  const visible = visibleCaseSql(viewer);
   const [free] = await db.sequelize.query<{ id: number }>(
-    "SELECT id FROM cases WHERE is_open = 1 AND assignee_id IS NULL AND status = 'new' ORDER BY priority_rank DESC, sla_due_at ASC LIMIT 1",
-    { type: QueryTypes.SELECT },
+    `SELECT c.id FROM cases c WHERE c.is_open = 1 AND c.assignee_id IS NULL AND c.status = 'new' AND ${visible.sql} ORDER BY c.priority_rank DESC, c.sla_due_at ASC LIMIT 1`,
+    { replacements: visible.replacements, type: QueryTypes.SELECT },
   );
   return free ? Number(free.id) : null;
 }

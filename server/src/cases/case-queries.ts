@@ -3,6 +3,7 @@ import type { Database } from '../db/database';
 import { mccInfo } from '@shared/reference/mcc';
 import type { CaseStatus, CaseSummary, Priority, QueueResponse, queueQuerySchema } from '@shared/api/cases';
 import type { z } from 'zod';
+import { visibleCaseSql, type CaseViewer } from './case-access';
 
 type QueueQuery = z.output<typeof queueQuerySchema>;
 
@@ -12,6 +13,8 @@ export interface CaseRow {
   priority: Priority;
   assignee_id: number | null;
   assignee_name: string | null;
+  team_id: number | null;
+  team_name: string | null;
   card_id: number;
   bin: string;
   last4: string;
@@ -35,8 +38,10 @@ export interface CaseRow {
   closed_at: Date | null;
 }
 
+// The team's name by a subquery on its primary key, so every query naming `cases c` can select these columns whatever it joins.
 export const CASE_COLUMNS = `
-  c.id, c.status, c.priority, c.assignee_id, u.display_name AS assignee_name, c.card_id, k.bin, k.last4, k.status AS card_status,
+  c.id, c.status, c.priority, c.assignee_id, u.display_name AS assignee_name,
+  c.team_id, (SELECT tg.name FROM investigator_groups tg WHERE tg.id = c.team_id) AS team_name, c.card_id, k.bin, k.last4, k.status AS card_status,
   k.cardholder_ref, c.highest_probability, c.highest_margin, c.amount_at_risk_minor, c.currency, c.currency_exponent, c.alert_count,
   c.first_alert_at, c.last_alert_at, c.sla_due_at, c.mcc, c.merchant_country, c.channel, c.updated_at, c.version, c.disposition, c.closed_at`;
 
@@ -50,6 +55,7 @@ export function toSummary(r: CaseRow): CaseSummary {
     status: r.status,
     priority: r.priority,
     assignee: r.assignee_id === null ? null : { id: Number(r.assignee_id), displayName: r.assignee_name ?? `#${r.assignee_id}` },
+    team: r.team_id === null ? null : { id: Number(r.team_id), name: r.team_name ?? `Team #${r.team_id}` },
     card: { bin: r.bin, last4: r.last4, status: r.card_status },
     probability: r.highest_probability,
     normalizedMargin: r.highest_margin,
@@ -81,10 +87,12 @@ const SORTS: Record<QueueQuery['sort'], (dir: 'ASC' | 'DESC') => string> = {
   id: (d) => `c.id ${d}`,
 };
 
-/** The queue page: filtered, sorted and paginated in the database, with the total count of matches. */
-export async function listQueue(db: Database, q: QueueQuery, userId: number): Promise<QueueResponse> {
-  const where: string[] = [];
-  const rep: Record<string, unknown> = {};
+/** The queue page: filtered, sorted and paginated in the database, with the total count of matches; only cases the viewer may see. */
+export async function listQueue(db: Database, q: QueueQuery, viewer: CaseViewer): Promise<QueueResponse> {
+  const userId = viewer.userId;
+  const visible = visibleCaseSql(viewer);
+  const where: string[] = viewer.anyTeam ? [] : [visible.sql];
+  const rep: Record<string, unknown> = { ...visible.replacements };
   const closedAsked = q.status?.includes('closed');
   if (!closedAsked) where.push('c.is_open = 1');
   if (q.status?.length) {
@@ -171,9 +179,11 @@ export async function listQueue(db: Database, q: QueueQuery, userId: number): Pr
   return { items: rows.map(toSummary), total: Number(count[0]?.n ?? 0), page: q.page, pageSize: q.pageSize, serverTime: new Date().toISOString() };
 }
 
-export async function getCaseRow(db: Database, id: number, opts: { forUpdate?: boolean; transaction?: unknown } = {}): Promise<CaseRow | null> {
-  const rows = await db.sequelize.query<CaseRow>(`SELECT ${CASE_COLUMNS} ${CASE_FROM} WHERE c.id = ? ${opts.forUpdate ? 'FOR UPDATE' : ''}`, {
-    replacements: [id],
+/** One case; with a viewer, only if they may see it (null otherwise, as for a missing case). */
+export async function getCaseRow(db: Database, id: number, opts: { forUpdate?: boolean; transaction?: unknown; viewer?: CaseViewer } = {}): Promise<CaseRow | null> {
+  const visible = opts.viewer ? visibleCaseSql(opts.viewer) : { sql: '1 = 1', replacements: {} };
+  const rows = await db.sequelize.query<CaseRow>(`SELECT ${CASE_COLUMNS} ${CASE_FROM} WHERE c.id = :id AND ${visible.sql} ${opts.forUpdate ? 'FOR UPDATE' : ''}`, {
+    replacements: { ...visible.replacements, id },
     type: QueryTypes.SELECT,
     transaction: opts.transaction as never,
   });

@@ -6,6 +6,7 @@ import { readAlertingSettings } from '../settings/settings-repository';
 import { AppError } from '../lib/app-error';
 import { getCaseRow, toSummary } from './case-queries';
 import { demoCardholderContact } from '../demo/demo-directory';
+import { visibleCaseSql, type CaseViewer } from './case-access';
 
 const iso = (d: Date | string) => new Date(d).toISOString();
 const ACTIVITY_LIMIT = 50;
@@ -41,10 +42,11 @@ interface AlertRow {
  * Everything the case file shows, in a fixed number of queries (no per-row
  * lookups): the case, its alerts with reasons and features, the card's recent
  * activity, related open cases by card, device or IP, notes, evidence,
- * messages and the audit timeline.
+ * messages and the audit timeline. With a viewer, the case and its related
+ * cases are only those the viewer may see.
  */
-export async function getCaseFile(db: Database, id: number, opts: { demoDirectory?: boolean } = {}): Promise<CaseDetail> {
-  const row = await getCaseRow(db, id);
+export async function getCaseFile(db: Database, id: number, opts: { demoDirectory?: boolean; viewer?: CaseViewer } = {}): Promise<CaseDetail> {
+  const row = await getCaseRow(db, id, { viewer: opts.viewer });
   if (!row) throw AppError.notFound('No such case.');
   const q = <T extends object>(sql: string, replacements: unknown[] | Record<string, unknown>) =>
     db.sequelize.query<T>(sql, { replacements, type: QueryTypes.SELECT });
@@ -114,15 +116,16 @@ export async function getCaseFile(db: Database, id: number, opts: { demoDirector
   const ips = [...new Set(alerts.map((a) => a.ip).filter((d): d is string => !!d))];
   const related: RelatedCase[] = [];
   if (devices.length || ips.length) {
+    const visible = opts.viewer ? visibleCaseSql(opts.viewer) : { sql: '1 = 1', replacements: {} };
     const rows = await q<{ id: number; status: RelatedCase['status']; probability: number; bin: string; last4: string; card_id: number; device_id: string | null; ip: string | null }>(
       `SELECT c.id, c.status, c.highest_probability AS probability, k.bin, k.last4, c.card_id, t.device_id, t.ip
        FROM transactions t
        JOIN alerts a ON a.transaction_id = t.id
        JOIN cases c ON c.id = a.case_id
        JOIN cards k ON k.id = c.card_id
-       WHERE c.id <> :id AND c.is_open = 1 AND (${[devices.length ? 't.device_id IN (:devices)' : '', ips.length ? 't.ip IN (:ips)' : ''].filter(Boolean).join(' OR ')})
+       WHERE c.id <> :id AND c.is_open = 1 AND ${visible.sql} AND (${[devices.length ? 't.device_id IN (:devices)' : '', ips.length ? 't.ip IN (:ips)' : ''].filter(Boolean).join(' OR ')})
        LIMIT 200`,
-      { id, devices, ips },
+      { ...visible.replacements, id, devices, ips },
     );
     const byCase = new Map<number, RelatedCase>();
     for (const r of rows) {

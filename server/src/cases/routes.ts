@@ -10,6 +10,7 @@ import { listQueue } from './case-queries';
 import { getCaseFile } from './get-case-file';
 import { addNote, claimCase, contactCardholder, disposeCase, escalateCase, releaseCase, setCardStatus, setCaseStatus, type CaseDeps } from './case-actions';
 import { storeEvidence } from './evidence-store';
+import { caseViewer, requireVisibleCase } from './case-access';
 
 const idParam = z.coerce.number().int().positive();
 
@@ -23,7 +24,7 @@ export function caseRoutes(d: CaseDeps): RouteSpec[] {
       summary: 'The queue: open cases, filtered, sorted and paginated on the server',
       handler: async (req, res) => {
         const q = parseOrThrow(queueQuerySchema, req.query, 'query string');
-        res.json(await listQueue(d.db, q, req.user!.id));
+        res.json(await listQueue(d.db, q, await caseViewer(d.db, req)));
       },
     },
     {
@@ -32,7 +33,9 @@ export function caseRoutes(d: CaseDeps): RouteSpec[] {
       access: needs('queue:read'),
       summary: 'The case file',
       handler: async (req, res) => {
-        res.json(await getCaseFile(d.db, caseId(req.params.id), { demoDirectory: d.config.EDGECASE_MODE !== 'production' }));
+        const id = caseId(req.params.id);
+        await requireVisibleCase(d.db, req, id, 'case.view');
+        res.json(await getCaseFile(d.db, id, { demoDirectory: d.config.EDGECASE_MODE !== 'production', viewer: await caseViewer(d.db, req) }));
       },
     },
     {
@@ -90,8 +93,7 @@ export function caseRoutes(d: CaseDeps): RouteSpec[] {
       summary: 'Upload evidence (PNG, JPEG, PDF or CSV, at most 10 MB)',
       handler: async (req, res) => {
         const id = caseId(req.params.id);
-        const [exists] = await d.db.sequelize.query<{ id: number }>('SELECT id FROM cases WHERE id = ?', { replacements: [id], type: QueryTypes.SELECT });
-        if (!exists) throw AppError.notFound('No such case.');
+        await requireVisibleCase(d.db, req, id, 'case.evidence');
         const file = await storeEvidence(req, d.config.UPLOAD_DIR);
         const now = new Date();
         const [evidenceId] = (await d.db.sequelize.query(
@@ -125,11 +127,16 @@ export function caseRoutes(d: CaseDeps): RouteSpec[] {
       handler: async (req, res) => {
         const id = caseId(req.params.id);
         const evidenceId = parseOrThrow(idParam, req.params.evidenceId, 'evidence id');
-        const [row] = await d.db.sequelize.query<{ file_name: string; content_type: string; storage_key: string }>(
-          'SELECT file_name, content_type, storage_key FROM case_evidence WHERE id = ? AND case_id = ?',
-          { replacements: [evidenceId, id], type: QueryTypes.SELECT },
+        await requireVisibleCase(d.db, req, id, 'case.evidence_download', { evidenceId });
+        // Evidence belongs to its case: an id from another case, even one the caller may see, is refused like a missing one.
+        const [row] = await d.db.sequelize.query<{ case_id: number; file_name: string; content_type: string; storage_key: string }>(
+          'SELECT case_id, file_name, content_type, storage_key FROM case_evidence WHERE id = ?',
+          { replacements: [evidenceId], type: QueryTypes.SELECT },
         );
-        if (!row) throw AppError.notFound('No such evidence on this case.');
+        if (row && Number(row.case_id) !== id) {
+          await auditRequest(d.db, req, { action: 'case.evidence_download', targetType: 'case', targetId: id, outcome: 'denied', details: { evidenceId, reason: 'not_on_this_case' } });
+        }
+        if (!row || Number(row.case_id) !== id) throw AppError.notFound('No such evidence on this case.');
         const root = path.resolve(d.config.UPLOAD_DIR);
         const full = path.resolve(root, row.storage_key);
         if (!full.startsWith(root + path.sep)) throw AppError.notFound('No such evidence on this case.');

@@ -18,9 +18,13 @@ export type DomainEvent =
       probability: number;
       status: string;
       assigneeId: number | null;
+      /** The case's team: with the assignee, it decides which investigators hear of the case. */
+      teamId: number | null;
       at: string;
     }
-  | { type: 'case.changed'; caseId: number; status: string; assigneeId: number | null; previousAssigneeId?: number | null; at: string }
+  | { type: 'case.changed'; caseId: number; status: string; assigneeId: number | null; previousAssigneeId?: number | null; teamId: number | null; at: string }
+  /** Team memberships changed: web servers recompute which team rooms their sockets sit in. */
+  | { type: 'teams.changed'; at: string }
   | { type: 'model.changed'; at: string }
   | { type: 'settings.changed'; at: string }
   | ({ type: 'training.progress' } & TrainingProgressEvent)

@@ -46,20 +46,22 @@ export async function pickGroupMember(db: Database, t: Transaction, groupId: num
 
 /**
  * Applies the routing rules to a case that was just opened (inside the
- * scoring transaction): the first enabled rule that matches names a group, a
- * member of it is picked, and the case is assigned to them (status stays
- * `new`: it waits in that person's queue). Returns the assignee, if any.
+ * scoring transaction): the first enabled rule that matches names a group,
+ * which becomes the case's team (whether or not anyone in it can take the
+ * case: then it waits in that team's queue), and a member of it is picked and
+ * assigned (status stays `new`: it waits in that person's queue). Returns the
+ * assignee, if any.
  */
 export async function routeNewCase(db: Database, t: Transaction, caseId: number, facts: RoutableCase): Promise<number | null> {
   const rules = await listRules(db, t);
   const i = firstMatchingRule(rules, facts);
   if (i < 0) return null;
-  const assignee = await pickGroupMember(db, t, rules[i].groupId);
-  if (assignee === null) return null;
-  await db.sequelize.query('UPDATE cases SET assignee_id = ?, claimed_at = UTC_TIMESTAMP(3) WHERE id = ? AND assignee_id IS NULL', {
-    replacements: [assignee, caseId],
-    type: QueryTypes.UPDATE,
-    transaction: t,
-  });
+  const teamId = rules[i].groupId;
+  const assignee = await pickGroupMember(db, t, teamId);
+  await db.sequelize.query(
+    // The case was opened by this transaction: nobody holds it yet.
+    'UPDATE cases SET team_id = :teamId, assignee_id = :assignee, claimed_at = IF(:assignee IS NULL, NULL, UTC_TIMESTAMP(3)) WHERE id = :caseId',
+    { replacements: { teamId, assignee, caseId }, type: QueryTypes.UPDATE, transaction: t },
+  );
   return assignee;
 }

@@ -134,6 +134,8 @@ export async function deleteGroup(db: Database, id: number): Promise<'deleted' |
     });
     if (Number(used.n) > 0) return 'in_use';
     await db.sequelize.query('DELETE FROM investigator_group_members WHERE group_id = ?', { replacements: [id], type: QueryTypes.DELETE, transaction: t });
+    // The group was its cases' team: without it they would be visible to supervisors only. They go back to the shared queue.
+    await db.sequelize.query('UPDATE cases SET team_id = NULL WHERE team_id = ?', { replacements: [id], type: QueryTypes.UPDATE, transaction: t });
     // BULKDELETE: Sequelize then returns the number of rows deleted.
     const affected = (await db.sequelize.query('DELETE FROM investigator_groups WHERE id = ?', {
       replacements: [id],

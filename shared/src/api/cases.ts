@@ -38,6 +38,8 @@ export interface CaseSummary {
   status: CaseStatus;
   priority: Priority;
   assignee: PersonRef | null;
+  /** The team routing gave the case to; null: the shared queue every investigator sees. */
+  team: { id: number; name: string } | null;
   card: { bin: string; last4: string; status: 'active' | 'blocked' };
   /** Highest calibrated probability among the case's alerts. */
   probability: number;
@@ -296,6 +298,7 @@ export interface QueueAlertEvent {
   probability: number;
   status: string;
   assigneeId: number | null;
+  teamId: number | null;
   at: string;
 }
 export interface QueueCaseChangedEvent {
@@ -304,5 +307,6 @@ export interface QueueCaseChangedEvent {
   status: string;
   assigneeId: number | null;
   previousAssigneeId?: number | null;
+  teamId: number | null;
   at: string;
 }

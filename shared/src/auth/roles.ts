@@ -20,6 +20,8 @@ export const CAPABILITIES = {
   'queue:read': ['investigator', 'supervisor'],
   'case:work': ['investigator', 'supervisor'],
   'case:reassign': ['supervisor'],
+  /** Every team's cases; without it an investigator sees the shared queue, their teams' cases and cases assigned to them. */
+  'case:any-team': ['supervisor'],
   'board:read': ['supervisor'],
   'approval:decide': ['supervisor'],
   'settings:alerting': ['supervisor'],

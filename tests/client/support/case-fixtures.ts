@@ -11,6 +11,7 @@ export function caseSummary(id: number, overrides: Partial<CaseSummary> = {}): C
     status: 'new',
     priority: 'high',
     assignee: null,
+    team: null,
     card: { bin: '491761', last4: String(1000 + id).slice(-4), status: 'active' },
     probability: 0.874,
     normalizedMargin: 0.42,

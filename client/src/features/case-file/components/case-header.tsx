@@ -111,6 +111,9 @@ export function CaseHeader({ detail, now, meId, actions }: { detail: CaseDetail;
         <Fact label="Assignee">
           {c.assignee ? (c.assignee.id === meId ? `You (${c.assignee.displayName})` : c.assignee.displayName) : <span className="text-muted">Unassigned</span>}
         </Fact>
+        <Fact label="Team">
+          {c.team ? <span title={`Routed to ${c.team.name}`}>{c.team.name}</span> : <span className="text-muted">Shared queue</span>}
+        </Fact>
         <Fact label="Card">
           <span className="inline-flex items-center gap-2">
             <CardFragment bin={c.card.bin} last4={c.card.last4} />

@@ -176,6 +176,19 @@ export function queueColumns(context: QueueCellContext) {
         );
       },
     }),
+    column.accessor('team', {
+      header: 'Team',
+      cell: ({ getValue }) => {
+        const team = getValue();
+        // Why the case is in this person's list: routed to a team they are in, or the shared queue everyone sees.
+        if (!team) return <span className="text-muted" title="Shared queue: every investigator sees it">Shared</span>;
+        return (
+          <span className="block max-w-32 truncate whitespace-nowrap" title={`Routed to ${team.name}`}>
+            {team.name}
+          </span>
+        );
+      },
+    }),
     column.accessor('firstAlertAt', {
       id: 'age',
       header: 'Age',
@@ -205,6 +218,7 @@ export const HIDEABLE_COLUMNS: { id: string; label: string }[] = [
   { id: 'channel', label: 'Channel' },
   { id: 'status', label: 'Status' },
   { id: 'assignee', label: 'Assignee' },
+  { id: 'team', label: 'Team' },
   { id: 'age', label: 'Age' },
   { id: 'slaDue', label: 'SLA' },
 ];

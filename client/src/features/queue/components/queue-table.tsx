@@ -57,7 +57,8 @@ function SortMark({ direction }: { direction: false | 'asc' | 'desc' }) {
 
 function rowLabel(c: CaseSummary): string {
   const who = c.assignee ? `assigned to ${c.assignee.displayName}` : 'unassigned';
-  return `Case ${c.id}, ${formatProbability(c.probability)} ${riskLevel(c.probability).word}, ${CASE_STATUS_LABELS[c.status] ?? c.status}, ${who}`;
+  const team = c.team ? `, team ${c.team.name}` : '';
+  return `Case ${c.id}, ${formatProbability(c.probability)} ${riskLevel(c.probability).word}, ${CASE_STATUS_LABELS[c.status] ?? c.status}, ${who}${team}`;
 }
 
 /**
