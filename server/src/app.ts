@@ -31,6 +31,7 @@ import { subscribeEvents } from './events/event-bus';
 import { bridgeEventsToSockets } from './realtime/event-bridge';
 import { DEMO_API_KEY } from './demo/demo-accounts';
 import { caseRoutes } from './cases/routes';
+import { teamsOf } from './cases/case-access';
 import { MailQueue } from './mail/mail-queue';
 import { OutgoingEvents } from './outgoing/outgoing-events';
 import { boardRoutes } from './board/routes';
@@ -115,7 +116,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   // A streamed back-fill import is read as fast as it is stored: give request bodies up to an hour
   // (Node's default cuts them at 300 s); header and idle timeouts stay short.
   http.requestTimeout = 60 * 60_000;
-  const hub = new SocketHub(http, sessionMiddleware, pp);
+  const hub = new SocketHub(http, sessionMiddleware, pp, (userIds) => teamsOf(db, userIds));
 
   const scoring = new ScoringQueue(config);
   const mail = new MailQueue(config);
@@ -158,7 +159,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       ...caseRoutes({ db, redis, config, mail, outgoing }),
       ...boardRoutes({ db, redis, config, mail }),
       ...settingsRoutes({ db, redis, config }),
-      ...routingRoutes({ db }),
+      ...routingRoutes({ db, redis, config }),
       ...approvalRoutes({ db, redis, config, mail, outgoing }),
       ...userRoutes({ db, config, mail, hub }),
       ...apiKeyRoutes({ db }),

@@ -1,5 +1,6 @@
 import { createContext, useContext, useEffect, useLayoutEffect, useRef, useState, type ReactNode } from 'react';
 import { io, type Socket } from 'socket.io-client';
+import { SESSION_ENDED_EVENT } from '@shared/api/realtime';
 
 /**
  * connecting: first attempt after sign-in; connected: live events flow;
@@ -12,8 +13,6 @@ type SocketContextValue = { socket: Socket | null; status: SocketStatus };
 
 const SocketContext = createContext<SocketContextValue>({ socket: null, status: 'offline' });
 
-/** The server sends this, then disconnects, when the session is signed out or deactivated. */
-export const SESSION_ENDED_EVENT = 'session:ended';
 
 function connect(): Socket {
   return io({ withCredentials: true });

@@ -8,7 +8,8 @@ import type { Database } from '../db/database';
 import type { Config } from '../config/index';
 import { AppError } from '../lib/app-error';
 import { auditRequest } from '../audit/record-audit';
-import { rooms, type SocketHub } from '../realtime/socket-hub';
+import type { SocketHub } from '../realtime/socket-hub';
+import { pushToSockets } from '../realtime/event-bridge';
 import type { VelocityStore } from '../scoring/velocity';
 import { findImport, listImports, type ImportRecord } from './import-repository';
 import { importTransactionsCsv } from './import-transactions-csv';
@@ -57,7 +58,7 @@ export function backfillRoutes(d: BackfillRouteDeps): RouteSpec[] {
             db: d.db,
             velocity: d.velocity,
             config: d.config,
-            emit: (userId, event) => d.hub.io.to(rooms.user(userId)).emit(BACKFILL_PROGRESS_EVENT, event),
+            emit: (userId, event) => pushToSockets(d.hub, BACKFILL_PROGRESS_EVENT, event, { userId }),
           },
           {
             user: { id: user.id, displayName: user.displayName },

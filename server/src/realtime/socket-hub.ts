@@ -3,18 +3,27 @@ import { Server, type Socket } from 'socket.io';
 import type { RequestHandler } from 'express';
 import type passport from 'passport';
 import type { SessionUser } from '@shared/api/auth';
+import { HELLO_EVENT, SESSION_ENDED_EVENT } from '@shared/api/realtime';
+import { can, type Role } from '@shared/auth/roles';
 import { logger } from '../lib/logger';
 
 type EngineRequest = IncomingMessage & { _query?: Record<string, string>; user?: SessionUser; sessionID?: string };
 
 export type SessionEndReason = 'signed_out' | 'deactivated' | 'expired';
 
-/** Room names: one per session, per person and per role. */
+/** Room names: one per session, per person, per role and per team. */
 export const rooms = {
   session: (sid: string) => `session:${sid}`,
   user: (id: number) => `user:${id}`,
   role: (role: string) => `role:${role}`,
+  team: (id: number) => `team:${id}`,
 };
+
+/** The teams of each of these people (investigator group memberships). */
+export type LoadTeams = (userIds: number[]) => Promise<Map<number, number[]>>;
+
+/** Team rooms matter to those who see cases by team: queue workers without every team's cases. */
+const joinsTeamRooms = (role: Role) => can(role, 'queue:read') && !can(role, 'case:any-team');
 
 /**
  * Socket.IO for staff consoles. The handshake runs the same express-session
@@ -24,7 +33,12 @@ export const rooms = {
 export class SocketHub {
   readonly io: Server;
 
-  constructor(http: HttpServer, sessionMiddleware: RequestHandler, pp: passport.PassportStatic) {
+  constructor(
+    http: HttpServer,
+    sessionMiddleware: RequestHandler,
+    pp: passport.PassportStatic,
+    private readonly loadTeams: LoadTeams,
+  ) {
     this.io = new Server(http, { serveClient: false, cors: { origin: false } });
     const onlyForHandshake =
       (mw: RequestHandler) => (req: EngineRequest, res: ServerResponse, next: (err?: unknown) => void) => {
@@ -40,18 +54,43 @@ export class SocketHub {
         res.end(JSON.stringify({ error: { code: 'unauthenticated', message: 'Sign in to continue.' } }));
       }),
     );
+    // Team rooms are looked up before the socket counts as connected, so no case event slips past a new socket.
+    this.io.use((socket, next) => {
+      const user = (socket.request as EngineRequest).user!;
+      if (!joinsTeamRooms(user.role)) return next();
+      this.loadTeams([user.id]).then(
+        (teams) => {
+          socket.data.teams = teams.get(user.id) ?? [];
+          next();
+        },
+        (err: Error) => next(err),
+      );
+    });
     this.io.on('connection', (socket: Socket) => {
       const req = socket.request as EngineRequest;
       const user = req.user!;
-      void socket.join([rooms.session(req.sessionID ?? 'none'), rooms.user(user.id), rooms.role(user.role)]);
-      socket.emit('hello', { user: { id: user.id, role: user.role }, serverTime: new Date().toISOString() });
+      const teams = ((socket.data.teams as number[] | undefined) ?? []).map(rooms.team);
+      void socket.join([rooms.session(req.sessionID ?? 'none'), rooms.user(user.id), rooms.role(user.role), ...teams]);
+      socket.emit(HELLO_EVENT, { user: { id: user.id, role: user.role }, serverTime: new Date().toISOString() });
     });
+  }
+
+  /** Team memberships changed: puts every socket on this server in the team rooms of its person's current teams. */
+  async refreshTeams(): Promise<void> {
+    const sockets = [...this.io.of('/').sockets.values()].filter((s) => joinsTeamRooms((s.request as EngineRequest).user!.role));
+    if (sockets.length === 0) return;
+    const teams = await this.loadTeams([...new Set(sockets.map((s) => (s.request as EngineRequest).user!.id))]);
+    for (const socket of sockets) {
+      const want = new Set((teams.get((socket.request as EngineRequest).user!.id) ?? []).map(rooms.team));
+      for (const room of socket.rooms) if (room.startsWith('team:') && !want.has(room)) void socket.leave(room);
+      void socket.join([...want]);
+    }
   }
 
   /** Tells every socket of a session that it has ended, then disconnects them. */
   endSession(sid: string, reason: SessionEndReason): void {
     const room = rooms.session(sid);
-    this.io.to(room).emit('session:ended', { reason });
+    this.io.to(room).emit(SESSION_ENDED_EVENT, { reason });
     this.io.in(room).disconnectSockets(true);
     logger().debug({ reason }, 'session sockets closed');
   }
@@ -59,7 +98,7 @@ export class SocketHub {
   /** Ends every session of a person (deactivation, role change). */
   endUser(userId: number, reason: SessionEndReason): void {
     const room = rooms.user(userId);
-    this.io.to(room).emit('session:ended', { reason });
+    this.io.to(room).emit(SESSION_ENDED_EVENT, { reason });
     this.io.in(room).disconnectSockets(true);
   }
 

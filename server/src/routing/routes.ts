@@ -4,7 +4,10 @@ import { needs, type RouteSpec } from '../access/route-table';
 import { AppError } from '../lib/app-error';
 import { parseOrThrow } from '../lib/validate';
 import { auditRequest } from '../audit/record-audit';
+import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
+import type { Config } from '../config/index';
+import { publishEvents } from '../events/event-bus';
 import { groupInputSchema, routingPreviewSchema, routingRulesSchema, type RoutingResponse, type RoutingRuleConditions } from '@shared/api/supervision';
 import { assignablePeople, deleteGroup, listGroups, listRules, replaceRules, saveGroup } from './routing-repository';
 import { previewRouting } from './preview-routing';
@@ -26,7 +29,9 @@ async function checkGroups(db: Database, rules: RoutingRuleConditions[]) {
   if (fields.length) throw AppError.badRequest('A rule names a group that does not exist.', fields);
 }
 
-export function routingRoutes(d: { db: Database }): RouteSpec[] {
+export function routingRoutes(d: { db: Database; redis: Redis; config: Config }): RouteSpec[] {
+  // Groups are teams: every web server moves its sockets to the team rooms of their people's new teams.
+  const teamsChanged = () => publishEvents(d.redis, d.config.REDIS_PREFIX, [{ type: 'teams.changed', at: new Date().toISOString() }]).catch(() => undefined);
   const state = async (): Promise<RoutingResponse> => {
     const [groups, rules, people] = await Promise.all([listGroups(d.db), listRules(d.db), assignablePeople(d.db)]);
     return { groups, rules, people };
@@ -53,6 +58,7 @@ export function routingRoutes(d: { db: Database }): RouteSpec[] {
         if (taken) throw AppError.badRequest('A group has that name already.', [{ path: 'name', message: 'Taken' }]);
         const id = await saveGroup(d.db, null, body);
         await auditRequest(d.db, req, { action: 'routing.group_create', targetType: 'group', targetId: id, outcome: 'success', details: body });
+        await teamsChanged();
         res.status(201).json(await state());
       },
     },
@@ -72,6 +78,7 @@ export function routingRoutes(d: { db: Database }): RouteSpec[] {
         if (taken) throw AppError.badRequest('A group has that name already.', [{ path: 'name', message: 'Taken' }]);
         if ((await saveGroup(d.db, id, body)) < 0) throw AppError.notFound('No such group.');
         await auditRequest(d.db, req, { action: 'routing.group_update', targetType: 'group', targetId: id, outcome: 'success', details: body });
+        await teamsChanged();
         res.json(await state());
       },
     },
@@ -79,13 +86,14 @@ export function routingRoutes(d: { db: Database }): RouteSpec[] {
       method: 'delete',
       path: '/routing/groups/:id',
       access: needs('case:reassign'),
-      summary: 'Delete a group no rule uses',
+      summary: 'Delete a group no rule uses (its cases go back to the shared queue)',
       handler: async (req, res) => {
         const id = parseOrThrow(idParam, req.params.id, 'group id');
         const outcome = await deleteGroup(d.db, id);
         if (outcome === 'missing') throw AppError.notFound('No such group.');
         if (outcome === 'in_use') throw AppError.conflict('A routing rule sends cases to this group. Change the rule first.', 'group_in_use');
         await auditRequest(d.db, req, { action: 'routing.group_delete', targetType: 'group', targetId: id, outcome: 'success' });
+        await teamsChanged();
         res.json(await state());
       },
     },

@@ -2,6 +2,7 @@ import { useQueryClient } from '@tanstack/react-query';
 import { useRef, useState } from 'react';
 import { Link, useLocation, useNavigate } from 'react-router';
 import { DISPOSITION_LABELS, FRAUD_TYPE_LABELS, type QueueAlertEvent, type QueueCaseChangedEvent } from '@shared/api/cases';
+import { QUEUE_ALERT_EVENT, QUEUE_CASE_CHANGED_EVENT } from '@shared/api/realtime';
 import { KeyHint } from '@/components/ui/key-hint';
 import { formatProbability } from '@/lib/format';
 import { useHotkey } from '@/lib/hotkeys';
@@ -47,8 +48,8 @@ export function CaseFileScreen({ caseId, meId }: { caseId: number; meId: number 
   const refreshIfThis = (event: QueueCaseChangedEvent | QueueAlertEvent) => {
     if (event?.caseId === caseId) void queryClient.invalidateQueries({ queryKey: getCaseQueryOptions(caseId).queryKey });
   };
-  useSocketEvent<[QueueCaseChangedEvent]>('queue:case-changed', refreshIfThis);
-  useSocketEvent<[QueueAlertEvent]>('queue:alert', refreshIfThis);
+  useSocketEvent<[QueueCaseChangedEvent]>(QUEUE_CASE_CHANGED_EVENT, refreshIfThis);
+  useSocketEvent<[QueueAlertEvent]>(QUEUE_ALERT_EVENT, refreshIfThis);
 
   const group = 'Case file';
   const mine = detail.case.assignee?.id === meId;

@@ -3,6 +3,7 @@ import type { SortingState, Updater } from '@tanstack/react-table';
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState } from 'react';
 import { useLocation, useNavigate, useSearchParams } from 'react-router';
 import { OPEN_STATUSES, type QueueAlertEvent, type SavedView } from '@shared/api/cases';
+import { QUEUE_ALERT_EVENT, QUEUE_CASE_CHANGED_EVENT } from '@shared/api/realtime';
 import { Button } from '@/components/ui/button';
 import { CautionNote } from '@/components/ui/caution-note';
 import { KeyHint } from '@/components/ui/key-hint';
@@ -97,11 +98,11 @@ export function QueueScreen({ meId }: { meId: number }) {
     void queryClient.invalidateQueries({ queryKey: queueListsKey });
   }, [queryClient]);
 
-  useSocketEvent<[QueueAlertEvent]>('queue:alert', (event) => {
+  useSocketEvent<[QueueAlertEvent]>(QUEUE_ALERT_EVENT, (event) => {
     setArrivals((a) => ({ alerts: a.alerts + 1, newCases: a.newCases + (event?.created ? 1 : 0) }));
     refetchQueue();
   });
-  useSocketEvent('queue:case-changed', refetchQueue);
+  useSocketEvent(QUEUE_CASE_CHANGED_EVENT, refetchQueue);
   useResyncOnReconnect(refetchQueue);
 
   // The cursor's case left the list (claimed elsewhere, closed): take its neighbour, and keep focus in the list.
