@@ -1,4 +1,3 @@
-import path from 'node:path';
 import { Transform, type Readable, type TransformCallback } from 'node:stream';
 import type { Request } from 'express';
 import busboy from 'busboy';
@@ -10,7 +9,7 @@ import {
   CLIENT_REF_PATTERN,
 } from '@shared/api/backfill';
 import { AppError } from '../lib/app-error';
-import { scrubDigits } from '../lib/logger';
+import { uploadDisplayName } from '../lib/upload-name';
 
 /** A whole-file problem: the run stops and the client gets `status`. */
 export class UploadProblem extends Error {
@@ -34,7 +33,6 @@ export interface CsvUpload {
 // Browsers label .csv files inconsistently (Excel installs make it application/vnd.ms-excel,
 // others send text/plain or nothing), so these are taken when the name ends in .csv.
 const GENERIC_TYPES = new Set(['', 'application/octet-stream', 'application/vnd.ms-excel', 'text/plain', 'application/csv', 'text/x-csv', 'text/comma-separated-values']);
-const CONTROL = /[\u0000-\u001f\u007f]/g; // eslint-disable-line no-control-regex
 // Multipart framing around the file: headers of each part and the boundaries.
 const FRAMING_ALLOWANCE = 64 * 1024;
 const SNIFF_BYTES = 8192;
@@ -47,11 +45,9 @@ function refuseType(): AppError {
   });
 }
 
-/** Display name of the upload: the base name only, without control characters or long digit runs. */
+/** Display name of the upload (see uploadDisplayName): shown and stored with the run, never a path. */
 export function cleanFileName(raw: string | undefined): string {
-  const base = path.basename(String(raw ?? '').replace(/\\/g, '/'));
-  const cleaned = scrubDigits(base.replace(CONTROL, '')).trim().slice(0, 255);
-  return cleaned || 'upload.csv';
+  return uploadDisplayName(raw, 'upload.csv', 255);
 }
 
 function isCsv(fileName: string, mimeType: string): boolean {

@@ -8,6 +8,7 @@ import type { Request } from 'express';
 import busboy from 'busboy';
 import { fileTypeFromBuffer } from 'file-type';
 import { AppError } from '../lib/app-error';
+import { uploadDisplayName } from '../lib/upload-name';
 import { EVIDENCE_MAX_BYTES, EVIDENCE_TYPES } from '@shared/api/cases';
 
 export interface StoredFile {
@@ -18,12 +19,25 @@ export interface StoredFile {
   storageKey: string;
 }
 
-/** A display name only: never used to build a path. Control characters and path parts removed. */
-export function safeDisplayName(name: string): string {
-  const base = name.split(/[\\/]/).pop() ?? 'file';
-  // eslint-disable-next-line no-control-regex
-  const clean = base.replace(/[\u0000-\u001f\u007f]/g, '').trim().slice(0, 200);
-  return clean || 'file';
+/** The extensions a file's name may end in, by the type its content shows. */
+const EXTENSIONS: Record<StoredFile['contentType'], readonly string[]> = {
+  'image/png': ['.png'],
+  'image/jpeg': ['.jpg', '.jpeg'],
+  'application/pdf': ['.pdf'],
+  'text/csv': ['.csv'],
+};
+
+/**
+ * The display name of evidence of type `type` (never used to build a path),
+ * ending in an extension of that type: one is added to a name without any, and
+ * a name ending in another is refused (null), since a PNG saved as page.html
+ * opens as a web page (OWASP File Upload Cheat Sheet, "Extension Validation").
+ */
+export function evidenceName(raw: string | undefined, type: StoredFile['contentType']): string | null {
+  const name = uploadDisplayName(raw, 'file');
+  const ext = path.extname(name).toLowerCase();
+  if (EXTENSIONS[type].includes(ext)) return name;
+  return ext === '' ? uploadDisplayName(`${name}${EXTENSIONS[type][0]}`, 'file') : null;
 }
 
 /** The first bytes of a file, enough for magic-number detection. */
@@ -104,7 +118,11 @@ export function storeEvidence(req: Request, uploadDir: string): Promise<StoredFi
         if (!contentType) {
           throw new AppError({ status: 415, code: 'unsupported_media_type', message: 'Evidence must be a PNG or JPEG image, a PDF or a CSV file.' });
         }
-        return { fileName: safeDisplayName(info.filename || 'file'), contentType, size, sha256: hash.digest('hex'), storageKey: key };
+        const fileName = evidenceName(info.filename, contentType);
+        if (!fileName) {
+          throw new AppError({ status: 415, code: 'unsupported_media_type', message: `The file's name does not match its content (${contentType}): rename it to end in ${EXTENSIONS[contentType].join(' or ')}.` });
+        }
+        return { fileName, contentType, size, sha256: hash.digest('hex'), storageKey: key };
       })().then(resolve, async (err: NodeJS.ErrnoException) => {
         await rm(full, { force: true }).catch(() => undefined);
         if (err?.code === 'ENOSPC') reject(new AppError({ status: 507, code: 'storage_full', message: 'The evidence store is full; nothing was saved. Tell an admin.' }));

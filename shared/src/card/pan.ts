@@ -1,3 +1,5 @@
+import { isLuhnValid } from './luhn';
+
 /**
  * Pure helpers for a card number (PAN, ISO/IEC 7812-1). What may be shown or
  * kept readably is the first six digits (the BIN, the issuer identification
@@ -57,4 +59,41 @@ export function maskPan(pan: string): string {
 export function maskFromParts(parts: PanParts, length = 16): string {
   const hidden = Math.max(0, length - parts.bin.length - parts.last4.length);
   return `${parts.bin}${'•'.repeat(hidden)}${parts.last4}`;
+}
+
+const MASK = '•';
+/** Digit groups joined by single spaces or dashes: how a card number is typed into free text. */
+const TYPED_DIGITS = /\d+(?:[ -]\d+)*/g;
+
+/**
+ * Free text (a note, an e-mail, a reason) with every card number in it masked
+ * to its BIN and last four, e.g. `4111 11•• •••• 1111`: the digits between are
+ * replaced one for one, spaces and dashes stay. A card number here is a run of
+ * 12-19 digits, whole digit groups of what was typed, that passes the Luhn
+ * check (ISO/IEC 7812-1); runs that fail it (phone numbers, references) are
+ * kept as typed. Masking is idempotent.
+ */
+export function maskPansInText(text: string): string {
+  return text.replace(TYPED_DIGITS, (typed) => {
+    // Where each digit sits in `typed`, and where each group of digits starts in that list.
+    const at: number[] = [];
+    const groupStarts: number[] = [];
+    for (let i = 0; i < typed.length; i++) {
+      if (typed[i] === ' ' || typed[i] === '-') continue;
+      if (i === 0 || typed[i - 1] === ' ' || typed[i - 1] === '-') groupStarts.push(at.length);
+      at.push(i);
+    }
+    const digits = at.map((i) => typed[i]).join('');
+    const hidden = new Set<number>();
+    const ends = [...groupStarts.slice(1), digits.length];
+    groupStarts.forEach((from, g) => {
+      for (let e = g; e < ends.length && ends[e] - from <= PAN_MAX_DIGITS; e++) {
+        const to = ends[e];
+        if (to - from < PAN_MIN_DIGITS || !isLuhnValid(digits.slice(from, to))) continue;
+        for (let k = from + 6; k < to - 4; k++) hidden.add(at[k]);
+      }
+    });
+    if (hidden.size === 0) return typed;
+    return Array.from(typed, (ch, i) => (hidden.has(i) ? MASK : ch)).join('');
+  });
 }
