@@ -4,9 +4,11 @@ import type { Writable } from 'node:stream';
 /**
  * Characters that make a spreadsheet read a cell as a formula when they lead
  * it: = + - @ tab (0x09) and carriage return (0x0D), per the OWASP "CSV
- * Injection" page; NUL as well, per OWASP ASVS 5.0 V1.2.10.
+ * Injection" page; NUL as well, per OWASP ASVS 5.0 V1.2.10. Spreadsheets also
+ * look past leading spaces and quotes (common practice), so a trigger behind
+ * those counts too.
  */
-const FORMULA_LEAD = /^[=+\-@\t\r\0]/;
+const FORMULA_LEAD = /^[\s"']*[=+\-@\t\r\0]/;
 
 /** A cell as text, with a leading `'` when it would otherwise start a formula. */
 export function neutraliseCell(value: unknown): string {
