@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { DEMO_API_KEY } from '../../../server/src/demo/demo-accounts';
 import { startTestServer, type TestServer } from '../helpers/test-server';
-import { fakeClientDist, isApiKeyRoute, label, PRODUCTION_ENV, roleFor, sessionsPerRole, urlOf } from './helpers';
+import { cspDirectives, fakeClientDist, isApiKeyRoute, label, PRODUCTION_ENV, roleFor, scriptSources, sessionsPerRole, urlOf } from './helpers';
 
 /**
  * Security headers on the three kinds of answer: the HTML shell, an API JSON
@@ -23,21 +23,6 @@ afterAll(async () => {
   await ts?.close();
   await prod?.close();
 });
-
-/** Directive name -> sources, from a Content-Security-Policy value (CSP Level 3, section 2.2: ";"-separated, names case-insensitive). */
-export function cspDirectives(header: string | undefined): Map<string, string[]> {
-  const out = new Map<string, string[]>();
-  for (const part of (header ?? '').split(';')) {
-    const [name, ...sources] = part.trim().split(/\s+/);
-    if (name && !out.has(name.toLowerCase())) out.set(name.toLowerCase(), sources);
-  }
-  return out;
-}
-
-/** The sources that govern scripts: script-src, else default-src (CSP Level 3, section 6.8.1 fallback list). */
-export function scriptSources(csp: Map<string, string[]>): string[] | undefined {
-  return csp.get('script-src') ?? csp.get('default-src');
-}
 
 function expectSecurityHeaders(res: request.Response, what: string) {
   const csp = cspDirectives(res.headers['content-security-policy']);

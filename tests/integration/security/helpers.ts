@@ -99,3 +99,18 @@ export const PRODUCTION_ENV = {
   PAN_HMAC_KEY: 'security-suite-pan-hmac-key-0123456789',
   DB_PASSWORD: process.env.DB_PASSWORD ?? 'edgecase',
 } as const;
+
+/** Directive name -> sources, from a Content-Security-Policy value (CSP Level 3, section 2.2: ";"-separated, names case-insensitive). */
+export function cspDirectives(header: string | undefined): Map<string, string[]> {
+  const out = new Map<string, string[]>();
+  for (const part of (header ?? '').split(';')) {
+    const [name, ...sources] = part.trim().split(/\s+/);
+    if (name && !out.has(name.toLowerCase())) out.set(name.toLowerCase(), sources);
+  }
+  return out;
+}
+
+/** The sources that govern scripts: script-src, else default-src (CSP Level 3, section 6.8.1 fallback list). */
+export function scriptSources(csp: Map<string, string[]>): string[] | undefined {
+  return csp.get('script-src') ?? csp.get('default-src');
+}
