@@ -10,7 +10,8 @@ import { CSRF_HEADER } from '@shared/api/auth';
 import { loadConfig, type Config } from './config/index';
 import { openDatabase, type Database } from './db/database';
 import { createRedis } from './lib/redis';
-import { logger } from './lib/logger';
+import { logger, scrubDigits } from './lib/logger';
+import { maskCardNumbersInBody } from './lib/mask-card-numbers';
 import { errorHandler, notFoundHandler } from './lib/error-handler';
 import { mountRoutes, type RouteSpec } from './access/route-table';
 import { createSession } from './auth/session';
@@ -27,7 +28,7 @@ import { ingestRoutes } from './ingest/routes';
 import { ScoringQueue } from './ingest/ingest-queue';
 import { VelocityStore } from './scoring/velocity';
 import { ActiveModels } from './scoring/active-models';
-import { subscribeEvents } from './events/event-bus';
+import { publishEvents, subscribeEvents } from './events/event-bus';
 import { bridgeEventsToSockets } from './realtime/event-bridge';
 import { DEMO_API_KEY } from './demo/demo-accounts';
 import { caseRoutes } from './cases/routes';
@@ -98,7 +99,8 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       autoLogging: { ignore: (req) => req.url === '/api/health' },
       customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'info' : 'debug'),
       serializers: {
-        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.split('?')[0] }),
+        // The query string is dropped; the path can still carry what a caller put in it (a card number for an id).
+        req: (req: { method: string; url: string }) => ({ method: req.method, url: scrubDigits(req.url.split('?')[0]) }),
         res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
       },
     }),
@@ -116,7 +118,13 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   // A streamed back-fill import is read as fast as it is stored: give request bodies up to an hour
   // (Node's default cuts them at 300 s); header and idle timeouts stay short.
   http.requestTimeout = 60 * 60_000;
-  const hub = new SocketHub(http, sessionMiddleware, pp, (userIds) => teamsOf(db, userIds));
+  const hub = new SocketHub(
+    http,
+    sessionMiddleware,
+    pp,
+    (userIds) => teamsOf(db, userIds),
+    (room, reason) => publishEvents(redis, config.REDIS_PREFIX, [{ type: 'sessions.ended', room, reason, at: new Date().toISOString() }]),
+  );
 
   const scoring = new ScoringQueue(config);
   const mail = new MailQueue(config);
@@ -144,6 +152,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   api.use(express.json({ limit: '2mb' }));
   // Upstream systems authenticate by API key only: no session is read or created on their routes.
   const staff = Router();
+  staff.use(maskCardNumbersInBody);
   staff.use(sessionMiddleware);
   staff.use(pp.session());
 

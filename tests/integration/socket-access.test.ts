@@ -262,3 +262,49 @@ describe('case events and teams', () => {
     expect(await whoHears(QUEUE_ALERT_EVENT, alert({ teamId, assigneeId: null }), ['supervisor'])).toEqual(['supervisor', 'team investigator']);
   });
 });
+
+describe('session ends across web servers', () => {
+  /** A socket on `server` for this session cookie, with what it heard. */
+  async function socketOn(server: TestServer, cookie: string) {
+    const socket = connectSocket(server.baseUrl, cookie);
+    const ended: unknown[] = [];
+    socket.on(SESSION_ENDED_EVENT, (e: unknown) => ended.push(e));
+    await new Promise((resolve, reject) => {
+      socket.on(HELLO_EVENT, resolve);
+      socket.on('connect_error', reject);
+    });
+    return { socket, ended, closed: () => waitFor(async () => socket.disconnected, 5_000) };
+  }
+
+  it('ends the sockets another web server holds for a deactivated person or a signed-out session, and no other session', async () => {
+    // A second web server on the same database and event bus, as behind a load balancer.
+    const other = await startTestServer({ REDIS_PREFIX: ts.server.config.REDIS_PREFIX });
+    const opened: Socket[] = [];
+    try {
+      const leaving = await newPerson(ts, 'investigator', 'Leaving Elsewhere');
+      const far = await socketOn(other, leaving.cookie);
+      opened.push(far.socket);
+      await send(admin, 'post', `/api/admin/users/${leaving.id}/deactivate`).expect(200);
+      await far.closed();
+      expect(far.ended).toEqual([{ reason: 'deactivated' }]);
+
+      const person = await newPerson(ts, 'investigator', 'Two Sessions');
+      const secondSession = await signIn(ts, person.email);
+      const signingOut = await socketOn(other, person.cookie);
+      const staying = await socketOn(other, secondSession.cookie);
+      opened.push(signingOut.socket, staying.socket);
+      await send(person, 'post', '/api/auth/logout').expect(204);
+      await signingOut.closed();
+      expect(signingOut.ended).toEqual([{ reason: 'signed_out' }]);
+      // The person's other session keeps its socket: a marker sent after the sign-out still reaches it.
+      const marker = new Promise((resolve) => staying.socket.on('test:marker', resolve));
+      other.server.hub.io.emit('test:marker', 1);
+      await marker;
+      expect(staying.socket.connected).toBe(true);
+      expect(staying.ended).toEqual([]);
+    } finally {
+      for (const s of opened) s.close();
+      await other.close();
+    }
+  });
+});

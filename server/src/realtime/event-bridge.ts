@@ -22,6 +22,8 @@ const PUSHED: { [T in DomainEvent['type']]: SocketEventName | null } = {
   'promotion.changed': PROMOTION_CHANGED_EVENT,
   'drift.reported': DRIFT_REPORTED_EVENT,
   'teams.changed': null,
+  // Sent by the socket hub itself, to the ended session's or person's sockets only.
+  'sessions.ended': null,
 };
 
 /** What an event is about, for audiences narrower than whole roles. */
@@ -69,6 +71,10 @@ export function pushToSockets(hub: SocketHub, name: SocketEventName, payload: un
 export function bridgeEventsToSockets(hub: SocketHub, e: DomainEvent): void {
   if (e.type === 'teams.changed') {
     hub.refreshTeams().catch((err: Error) => logger().warn({ err: err.message }, 'team rooms not refreshed'));
+    return;
+  }
+  if (e.type === 'sessions.ended') {
+    hub.closeRoom(e.room, e.reason);
     return;
   }
   const name = PUSHED[e.type];

@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import type { Server as HttpServer, IncomingMessage, ServerResponse } from 'node:http';
 import { Server, type Socket } from 'socket.io';
 import type { RequestHandler } from 'express';
@@ -13,7 +14,8 @@ export type SessionEndReason = 'signed_out' | 'deactivated' | 'expired';
 
 /** Room names: one per session, per person, per role and per team. */
 export const rooms = {
-  session: (sid: string) => `session:${sid}`,
+  // A digest of the session id: room names travel between web servers, session ids stay in cookies and the session table.
+  session: (sid: string) => `session:${createHash('sha256').update(sid).digest('hex').slice(0, 32)}`,
   user: (id: number) => `user:${id}`,
   role: (role: string) => `role:${role}`,
   team: (id: number) => `team:${id}`,
@@ -21,6 +23,9 @@ export const rooms = {
 
 /** The teams of each of these people (investigator group memberships). */
 export type LoadTeams = (userIds: number[]) => Promise<Map<number, number[]>>;
+
+/** Tells every web server that the sockets of a session or person room must end (the event bus). */
+export type AnnounceEnded = (room: string, reason: SessionEndReason) => Promise<void>;
 
 /** Team rooms matter to those who see cases by team: queue workers without every team's cases. */
 const joinsTeamRooms = (role: Role) => can(role, 'queue:read') && !can(role, 'case:any-team');
@@ -38,6 +43,7 @@ export class SocketHub {
     sessionMiddleware: RequestHandler,
     pp: passport.PassportStatic,
     private readonly loadTeams: LoadTeams,
+    private readonly announceEnded: AnnounceEnded,
   ) {
     this.io = new Server(http, { serveClient: false, cors: { origin: false } });
     const onlyForHandshake =
@@ -87,19 +93,28 @@ export class SocketHub {
     }
   }
 
-  /** Tells every socket of a session that it has ended, then disconnects them. */
+  /** Tells every socket of a session, on every web server, that it has ended, then disconnects them. */
   endSession(sid: string, reason: SessionEndReason): void {
-    const room = rooms.session(sid);
+    this.endEverywhere(rooms.session(sid), reason);
+  }
+
+  /** Ends every session of a person, on every web server (deactivation, role change). */
+  endUser(userId: number, reason: SessionEndReason): void {
+    this.endEverywhere(rooms.user(userId), reason);
+  }
+
+  private endEverywhere(room: string, reason: SessionEndReason): void {
+    // This server at once; the others when the bus brings the announcement (this one hears it too: nothing is left to end).
+    this.closeRoom(room, reason);
+    this.announceEnded(room, reason).catch((err: Error) => logger().warn({ err: err.message }, 'session end not announced to other web servers'));
+  }
+
+  /** Sends `session:ended` to the sockets of a session or person room on this server, then disconnects them. */
+  closeRoom(room: string, reason: SessionEndReason): void {
+    if (!room.startsWith('session:') && !room.startsWith('user:')) return;
     this.io.to(room).emit(SESSION_ENDED_EVENT, { reason });
     this.io.in(room).disconnectSockets(true);
     logger().debug({ reason }, 'session sockets closed');
-  }
-
-  /** Ends every session of a person (deactivation, role change). */
-  endUser(userId: number, reason: SessionEndReason): void {
-    const room = rooms.user(userId);
-    this.io.to(room).emit(SESSION_ENDED_EVENT, { reason });
-    this.io.in(room).disconnectSockets(true);
   }
 
   close(): Promise<void> {
