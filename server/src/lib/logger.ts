@@ -30,6 +30,22 @@ export function scrubDigits(text: string): string {
   return text.replace(DIGIT_RUN, '[digits removed]');
 }
 
+/**
+ * A copy of what a caller logs with every string scrubbed, at any depth (an
+ * error's message, a URL, a SQL statement inside an object): scrubbing only the
+ * message would let a card number through in a field.
+ */
+export function scrubLogValue(value: unknown, depth = 0): unknown {
+  if (typeof value === 'string') return scrubDigits(value);
+  if (value === null || typeof value !== 'object' || depth > 6) return value;
+  if (value instanceof Error) return scrubLogValue(pino.stdSerializers.err(value), depth + 1);
+  if (Array.isArray(value)) return value.map((v) => scrubLogValue(v, depth + 1));
+  if (value instanceof Date || Buffer.isBuffer(value)) return value;
+  const out: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(value)) out[k] = scrubLogValue(v, depth + 1);
+  return out;
+}
+
 export function createLogger(name: string): Logger {
   const c = config();
   return pino({
@@ -42,8 +58,11 @@ export function createLogger(name: string): Logger {
         method.apply(this, scrubbed);
       },
     },
+    formatters: {
+      log: (object) => scrubLogValue(object) as Record<string, unknown>,
+    },
     serializers: {
-      err: pino.stdSerializers.err,
+      err: (err: Error) => scrubLogValue(pino.stdSerializers.err(err)),
     },
   });
 }

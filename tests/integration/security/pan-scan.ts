@@ -7,6 +7,7 @@
  * 7812-1 Annex B). People and systems write it bare or in groups split by
  * single spaces or dashes (4-4-4-4, 4-6-5, ...), so a candidate is either one
  * unbroken run of digits or a window of whole groups of at most six digits.
+ * The digits after the point of a decimal number are not a candidate.
  *
  * Written apart from the product's own masking on purpose: a check must not
  * share the code it checks. The Luhn test is the shared module's, which has
@@ -73,6 +74,8 @@ export function findPans(text: string): PanFinding[] {
   for (const m of searchable.matchAll(GROUPS)) {
     const groups: { digits: string; index: number }[] = [];
     for (const g of m[0].matchAll(/\d+/g)) groups.push({ digits: g[0], index: m.index + g.index });
+    // The fraction of a decimal number (a probability, a model weight: 0.7045371234568223) is no card.
+    if (/\d\.$/.test(searchable.slice(Math.max(0, m.index - 2), m.index))) continue;
     for (const g of groups) {
       if (g.digits.length >= MIN && g.digits.length <= MAX && !looksLikeClock(g.digits)) report(g.digits, g.index);
     }

@@ -50,6 +50,10 @@ describe('PAN scanner', () => {
     // A digest whose digits hold a Luhn-valid run of 16, and a UUID with an all-digit last group.
     expect(digitsOf(`ab${'4111111111111111'}${'c'.repeat(20)}`)).toEqual([]);
     expect(digitsOf(`12345678-1234-4234-8234-${withCheck('99009900000')}`)).toEqual([]);
+    // The fraction of a decimal number, as model weights and probabilities are written; a PAN after a word and a dot is still one.
+    expect(digitsOf(`{"p":0.${'4111111111111111'}}`)).toEqual([]);
+    expect(digitsOf(`12.${'4111111111111111'}`)).toEqual([]);
+    expect(digitsOf(`card.${'4111111111111111'}`)).toEqual(['4111111111111111']);
     // A number on its own next to those is still found.
     expect(digitsOf(`${'a'.repeat(40)} 4111111111111111`)).toEqual(['4111111111111111']);
   });
