@@ -9,12 +9,13 @@ import { firstMatchingRule, ruleMatches, routingRuleInputSchema, thresholdForCap
 import { histogramByClass } from '../../shared/src/model/index';
 
 describe('CSV cells against formula injection', () => {
-  // OWASP "CSV Injection": cells starting with = + - @ tab (0x09) or CR (0x0D) get a leading single quote.
-  it.each(['=1+1', '+1', '-1', '@A1', '\t=1', '\r=1', '\0x'])('neutralises %j', (cell) => {
+  // OWASP "CSV Injection": cells starting with = + - @ tab (0x09) or CR (0x0D) get a leading single quote;
+  // so do those with a trigger behind leading spaces or quotes, which spreadsheets look past (common practice).
+  it.each(['=1+1', '+1', '-1', '@A1', '\t=1', '\r=1', '\0x', ' =1', '  @A1', '"=1', "'+1"])('neutralises %j', (cell) => {
     expect(neutraliseCell(cell)).toBe(`'${cell}`);
   });
 
-  it.each(['plain', '1+1', ' =1', "'already quoted", ''])('leaves %j as it is', (cell) => {
+  it.each(['plain', '1+1', ' 1-1', "'already quoted", ''])('leaves %j as it is', (cell) => {
     expect(neutraliseCell(cell)).toBe(cell);
   });
 

@@ -1,4 +1,5 @@
 import type { NormalisedTransaction, ValidBackfillTransaction, ValidTransaction } from '@shared/api/transactions';
+import { maskPansInText } from '@shared/card/pan';
 import { tokenisePan } from './pan-token';
 
 const isBackfill = (v: ValidTransaction | ValidBackfillTransaction): v is ValidBackfillTransaction =>
@@ -7,8 +8,8 @@ const isBackfill = (v: ValidTransaction | ValidBackfillTransaction): v is ValidB
 /**
  * The stored shape of a validated transaction. The card number is replaced by
  * BIN, last four and its keyed hash here, so nothing after this point (the
- * database, the job payload, the logs) can hold it. `panHmacKey` is the
- * server's PAN_HMAC_KEY.
+ * database, the job payload, the logs) can hold it; another card's number in
+ * the merchant name is masked. `panHmacKey` is the server's PAN_HMAC_KEY.
  */
 export function normaliseTransaction(valid: ValidTransaction | ValidBackfillTransaction, panHmacKey: string | Uint8Array): NormalisedTransaction {
   const token = tokenisePan(valid.card.pan, panHmacKey);
@@ -26,7 +27,8 @@ export function normaliseTransaction(valid: ValidTransaction | ValidBackfillTran
       cardholderId: valid.card.cardholderId,
       expiry: valid.card.expiry,
     },
-    merchant: { ...valid.merchant },
+    // The merchant name is display text an acquirer writes (a refund note may hold another card's number): masked to BIN and last four.
+    merchant: { ...valid.merchant, name: maskPansInText(valid.merchant.name) },
     cardPresent: valid.cardPresent,
     channel: valid.channel,
     deviceId: valid.deviceId,

@@ -55,6 +55,8 @@ const CARD = {
   inId: testCard('555555'),
   /** Another card's number in the merchant name of an item refused for its currency. */
   elsewhereRejected: testCard('601111'),
+  /** Another card's number in the merchant name of a valid item (a refund note an acquirer wrote there). */
+  inMerchantName: testCard('353011'),
   caseCard: testCard('411111'),
   lookup: testCard('555555'),
   backfill: [testCard('411111'), testCard('353011')],
@@ -99,6 +101,7 @@ async function drive() {
   const single = txn({ card: { number: spaced(CARD.single), cardholderId: 'ch-4242' } });
   expect((await upstream('post', '/api/v1/transactions').send(single)).status).toBe(202);
   const batch = CARD.batch.map((n, i) => txn({ card: { number: i === 1 ? dashed(n) : n, cardholderId: `ch-${4300 + i}` } }));
+  batch[2].merchant = { id: 'm-2', name: `Refund to ${spaced(CARD.inMerchantName)}`, mcc: '5411', country: 'US' };
   const rejected = [
     txn({ amount: 'twelve', card: { number: CARD.rejected, cardholderId: 'ch-4400' } }),
     { ...txn({ card: { number: CARD.inId, cardholderId: 'ch-4401' } }), id: CARD.inId },
@@ -200,7 +203,7 @@ async function databaseTexts(db: Database): Promise<{ source: string; text: stri
   return out;
 }
 
-/** Every key of the Redis the processes share, and every value whatever its type (strings, hashes, lists, sets, sorted sets, streams: BullMQ jobs included). */
+/** Every key of the Redis the processes share, and every value whatever its type (strings, hashes, lists, sets, sorted-set members, streams: BullMQ jobs included). */
 async function redisTexts(): Promise<{ source: string; text: string }[]> {
   const redis = createRedis(loadConfig(stack.env), { name: 'pan-scan', forBullmq: true });
   const out: { source: string; text: string }[] = [];
@@ -221,7 +224,8 @@ async function redisTexts(): Promise<{ source: string; text: string }[]> {
                 : type === 'set'
                   ? await redis.smembers(key)
                   : type === 'zset'
-                    ? await redis.zrange(key, 0, -1, 'WITHSCORES')
+                    ? // Members only: scores are the numbers Redis orders by (BullMQ's delayed set scores a job by its time times 4096).
+                      await redis.zrange(key, 0, -1)
                     : type === 'stream'
                       ? (await redis.xrange(key, '-', '+')).flat(3)
                       : [`(unread type ${type})`];

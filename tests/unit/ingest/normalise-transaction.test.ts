@@ -34,6 +34,13 @@ describe('normaliseTransaction', () => {
     expect(keysOf(JSON.parse(json))).not.toContain('number');
   });
 
+  it('masks another card number written into the merchant name to BIN and last four (PCI DSS display rule, common practice)', () => {
+    // 5555 5555 5555 4444: a Mastercard test number published for sandboxes (from memory), Luhn-valid.
+    const n = normaliseTransaction(valid({ ...example, merchant: { ...example.merchant, name: 'Refund to 5555 5555 5555 4444' } }), KEY);
+    expect(n.merchant.name).toBe('Refund to 5555 55•• •••• 4444');
+    expect(normaliseTransaction(valid(example), KEY).merchant.name).toBe(example.merchant.name);
+  });
+
   it('gives the same hash for the same number however it is spaced, and another under another key', () => {
     const spellings = ['4000 0000 0000 0002', '4000-0000-0000-0002', '4000000000000002', ' 4000 0000-0000 0002 '];
     const hashes = spellings.map((number) => normaliseTransaction(valid({ ...example, card: { ...example.card, number } }), KEY).card.panHash);
