@@ -62,7 +62,8 @@ export function createLogger(name: string): Logger {
       log: (object) => scrubLogValue(object) as Record<string, unknown>,
     },
     serializers: {
-      err: (err: Error) => scrubLogValue(pino.stdSerializers.err(err)),
+      // The log formatter has already turned a logged error into a plain, scrubbed object; one reaching here otherwise is serialised now.
+      err: (err: unknown) => scrubLogValue(err instanceof Error ? pino.stdSerializers.err(err) : err),
     },
   });
 }
