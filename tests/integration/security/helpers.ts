@@ -2,6 +2,9 @@
  * What the security tests share: the route table read as a list of checks,
  * signed-in sessions per role, cases from the real pipeline, and a
  * fingerprint of the data to prove a refused request changed nothing.
+ *
+ * The OWASP ASVS 4.0 (4.0.3) requirement numbers the suite names beside its
+ * checks are cited from memory; the RFC and OWASP cheat-sheet names are exact.
  */
 import { mkdtemp, writeFile } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
