@@ -13,10 +13,11 @@ import { nestCsvRecord, validateBackfillTransaction, type Issue } from '@shared/
 import type { Database } from '../db/database';
 import type { Config } from '../config/index';
 import type { VelocityStore } from '../scoring/velocity';
+import { AppError } from '../lib/app-error';
 import { logger, scrubDigits } from '../lib/logger';
 import { normaliseTransaction } from '../ingest/normalise-transaction';
 import { createImport, findImport, finishImport, saveProgress } from './import-repository';
-import { ErrorReport, type ReportLine } from './error-report';
+import { ErrorReport, isStorageFull, storageFullFailure, type ReportLine } from './error-report';
 import { UploadProblem } from './receive-upload';
 import { storeHistoricalBatch, type HistoricalItem } from './store-historical';
 
@@ -27,6 +28,13 @@ export const PROGRESS_INTERVAL_MS = 250;
 const HEARTBEAT_MS = 30_000;
 const MAX_RECORD_CHARS = 64 * 1024;
 const INTERNAL_FAILURE = { status: 500, code: 'internal', message: 'The import stopped because of a problem on our side; the rows before it were kept.' };
+const STORAGE_FULL_FAILURE = storageFullFailure('the rows');
+/** RFC 9110 §15.6.4: a transient refusal the client may retry (the route sends Retry-After). */
+const BUSY_FAILURE = {
+  status: 503,
+  code: 'unavailable',
+  message: 'The database stayed busy with live transactions on the same cards, so the import stopped; the rows before it were imported. Upload the same file again shortly (imported rows count as duplicates).',
+};
 
 export interface ImportDeps {
   db: Database;
@@ -232,21 +240,27 @@ export async function importTransactionsCsv(d: ImportDeps, input: ImportInput): 
     if (header === null) throw fileProblem('empty_file', 'The file is empty: the first line must be the header row naming the columns.');
     await drain();
   } catch (err) {
-    if (err instanceof CsvError) failure = toFailure(csvProblem(err));
-    else if (err instanceof UploadProblem) failure = toFailure(err);
-    else failure = { ...INTERNAL_FAILURE };
+    failure = failureOf(err);
     if (failure.status === 500) logger().error({ err, importId: id }, 'back-fill import failed');
     input.file.destroy();
     await piping;
     // Rows read before the file broke are kept: each was valid on its own.
-    const kept = failure.status === 500 ? storing.catch(() => undefined) : drain();
+    const kept = failure.status >= 500 ? storing.catch(() => undefined) : drain();
     await kept.catch((e: unknown) => {
-      failure = { ...INTERNAL_FAILURE };
-      logger().error({ err: e, importId: id }, 'back-fill import failed');
+      failure = failureOf(e);
+      if (failure.status === 500) logger().error({ err: e, importId: id }, 'back-fill import failed');
     });
   }
 
-  await report.close().catch((err: Error) => logger().warn({ err: err.message, importId: id }, 'error report did not close cleanly'));
+  // A report the disk could not take is removed, and the run says so: a half report would list fewer rows than it counts.
+  await report.close().catch((err: Error) => {
+    if (!isStorageFull(err)) logger().warn({ err: err.message, importId: id }, 'error report did not close cleanly');
+  });
+  if (isStorageFull(report.error)) {
+    failure = { ...STORAGE_FULL_FAILURE };
+    logger().warn({ importId: id }, 'back-fill error report not written: the upload disk is full');
+    await report.discard();
+  }
   finishedAt = new Date();
   counts.bytesRead = input.bytesRead();
   await finishImport(d.db, id, { counts, errorReportFile: report.fileName, failure: failure && { code: failure.code, message: failure.message }, finishedAt });
@@ -256,6 +270,15 @@ export async function importTransactionsCsv(d: ImportDeps, input: ImportInput): 
 }
 
 const toFailure = (p: UploadProblem) => ({ status: p.status, code: p.code, message: p.message });
+
+/** What a run that stopped answers, from what stopped it: the file's fault (4xx), a full disk (507), a busy database (503), or ours (500). */
+function failureOf(err: unknown): NonNullable<ImportOutcome['failure']> {
+  if (err instanceof CsvError) return toFailure(csvProblem(err));
+  if (err instanceof UploadProblem) return toFailure(err);
+  if (isStorageFull(err)) return { ...STORAGE_FULL_FAILURE };
+  if (err instanceof AppError && err.status === 503) return { ...BUSY_FAILURE };
+  return { ...INTERNAL_FAILURE };
+}
 
 function readRow(header: string[], cells: string[], row: number, now: Date, panKey: string): PendingRow {
   if (cells.length !== header.length) {

@@ -77,6 +77,8 @@ export function backfillRoutes(d: BackfillRouteDeps): RouteSpec[] {
           details: { fileName: view.fileName, status: view.status, counts: view.counts, ...(failure ? { error: failure.code } : {}) },
         });
         if (failure) {
+          // RFC 9110 §10.2.3: a 503 says when to come back.
+          if (failure.status === 503) res.set('Retry-After', '2');
           res.status(failure.status).json({ error: { code: failure.code, message: failure.message }, import: view });
           return;
         }

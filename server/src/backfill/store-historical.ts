@@ -3,6 +3,7 @@ import type { NormalisedTransaction, TransactionLabel } from '@shared/api/transa
 import { featureRow } from '@shared/features/definitions';
 import { isHighRiskMcc } from '@shared/reference/mcc';
 import type { Database } from '../db/database';
+import { AppError } from '../lib/app-error';
 import { storeTransactions, type TransactionSource } from '../ingest/transaction-repository';
 import type { VelocityStore } from '../scoring/velocity';
 
@@ -40,6 +41,8 @@ export interface HistoricalMeta {
 }
 
 const DEADLOCK = 1213;
+/** A chunk waits on live ingest's short transactions; a few tries with a growing random pause get through. */
+const DEADLOCK_RETRIES = 8;
 const isDeadlock = (err: unknown): boolean => {
   const e = err as { parent?: { errno?: number }; original?: { errno?: number } };
   return e?.parent?.errno === DEADLOCK || e?.original?.errno === DEADLOCK;
@@ -52,9 +55,12 @@ const placeholders = (rows: number, width: number) => Array.from({ length: rows 
  * idempotently by upstream id, marked historical in the same database
  * transaction (so the requeue sweeper never sees them as waiting to be scored),
  * features computed through the live velocity state in time order, and labels
- * recorded. Everything for the batch commits together; a deadlock retries the
- * whole batch, which is safe because velocity observations are idempotent per
- * transaction id. Returns one outcome per item, in the items' order.
+ * recorded. Everything for the batch commits together; a deadlock (on the
+ * card index next to live ingest's new cards) retries the whole batch after a
+ * random pause that grows with each try, which is safe because velocity
+ * observations are idempotent per transaction id; when the tries run out the
+ * batch is refused with a 503 (nothing of it kept). Returns one outcome per
+ * item, in the items' order.
  */
 export async function storeHistoricalBatch(
   db: Database,
@@ -67,7 +73,9 @@ export async function storeHistoricalBatch(
     try {
       return await db.sequelize.transaction((t) => storeInTransaction(db, velocity, items, meta, t));
     } catch (err) {
-      if (!isDeadlock(err) || attempt >= 3) throw err;
+      if (!isDeadlock(err)) throw err;
+      if (attempt >= DEADLOCK_RETRIES) throw AppError.unavailable('The database is busy with concurrent writes to the same cards; nothing of this part was kept. Retry shortly.', 2);
+      await new Promise((r) => setTimeout(r, 10 + Math.random() * 40 * (attempt + 1)));
     }
   }
 }

@@ -6,7 +6,7 @@ import { LATE_LABEL_COLUMNS, LATE_LABEL_FRAUD_TYPES, type LabelImport } from '@s
 import type { Database } from '../db/database';
 import type { Config } from '../config/index';
 import { logger, scrubDigits } from '../lib/logger';
-import { ErrorReport, type ReportLine } from '../backfill/error-report';
+import { ErrorReport, isStorageFull, storageFullFailure, type ReportLine } from '../backfill/error-report';
 import { UploadProblem } from '../backfill/receive-upload';
 import { createLabelImport, findLabelImport, finishLabelImport, labelReportRoot } from './label-import-repository';
 
@@ -32,6 +32,8 @@ export interface LateLabelsOutcome {
 }
 
 const fileProblem = (code: string, message: string) => new UploadProblem(400, code, message);
+
+const LABELS_STORAGE_FULL = storageFullFailure('the labels');
 
 function readHeader(cells: string[]): string[] {
   const names = cells.map((c) => c.trim());
@@ -168,6 +170,7 @@ export async function importLateLabels(d: { db: Database; config: Pick<Config, '
   } catch (err) {
     if (err instanceof UploadProblem) failure = { status: err.status, code: err.code, message: err.message };
     else if (err instanceof CsvError) failure = { status: 400, code: 'malformed_csv', message: 'The file stops being valid CSV (a quote that is never closed, or a row far too long). Rows before it were imported.' };
+    else if (isStorageFull(err)) failure = { ...LABELS_STORAGE_FULL };
     else {
       logger().error({ err, importId: id }, 'late-label import failed');
       failure = { status: 500, code: 'internal', message: 'The import stopped because of a problem on our side; the rows before it were kept.' };
@@ -176,6 +179,11 @@ export async function importLateLabels(d: { db: Database; config: Pick<Config, '
     await piping;
   }
   await report.close().catch(() => undefined);
+  // A report the disk could not take is removed, and the run says so (RFC 4918 §11.5: 507).
+  if (isStorageFull(report.error)) {
+    failure = { ...LABELS_STORAGE_FULL };
+    await report.discard();
+  }
   await finishLabelImport(d.db, id, { counts, errorReportFile: report.fileName, failure: failure && { code: failure.code, message: failure.message } });
   const stored = await findLabelImport(d.db, id);
   return { view: stored!.view, failure };
