@@ -7,11 +7,25 @@ import { logger } from '../../server/src/lib/logger';
 import { subscribeEvents } from '../../server/src/events/event-bus';
 import { TrainingQueue } from '../../server/src/training/training-queue';
 import { readSchedule } from '../../server/src/training/training-schedule';
-import { createScheduledRun, runTraining, type TrainingJobDeps } from '../../server/src/training/run-training-job';
+import { createScheduledRun, failUnfinishedRun, INTERRUPTED_RUN_ERROR, runTraining, type TrainingJobDeps } from '../../server/src/training/run-training-job';
 import { threadTrainer } from '../../server/src/training/thread-trainer';
 import type { Trainer } from '../../server/src/training/train-model-version';
 import { QUEUES, trainingJobSchema, type TrainingJob } from '@shared/jobs/queues';
 import { workerOptions } from './lib/worker-options';
+
+/**
+ * Locks of a training job. Boosting runs in a thread, so this process's event
+ * loop stays free to renew the lock (every half lock); the longest stretch it
+ * is busy is reading the data set and evaluating, seconds even for the demo's
+ * history, well inside half a lock. If the process dies, BullMQ finds the job
+ * stalled once the lock has lapsed, within about a lock and two stalled
+ * checks (under a minute, not the several minutes of a long lock), and hands
+ * it to a training worker, which ends the run as failed with a reason
+ * (runTraining); a second stall fails the job, and the 'failed' handler below
+ * does the same. One stall allowed: an interrupted run is not trained again
+ * on its own (a process killed for memory would be killed again).
+ */
+const TRAINING_LOCKS = { lockDuration: 30_000, stalledInterval: 15_000, maxStalledCount: 1 };
 
 export interface TrainingWorkerOptions {
   /** How boosting runs; default a worker thread (so this process keeps answering while rounds run). */
@@ -47,7 +61,13 @@ export async function createTrainingWorker(
     async (job: Job<TrainingJob>) => {
       const parsed = trainingJobSchema.safeParse(job.data);
       if (!parsed.success) throw new UnrecoverableError(`invalid training job: ${parsed.error.issues[0]?.message ?? 'bad payload'}`);
-      const runId = 'runId' in parsed.data ? parsed.data.runId : await createScheduledRun(deps);
+      let runId: number;
+      if ('runId' in parsed.data) runId = parsed.data.runId;
+      else {
+        runId = await createScheduledRun(deps);
+        // From now on the job names its run, so a job that comes back after its process died ends this run, not a new one.
+        await job.updateData({ runId });
+      }
       const controller = new AbortController();
       running.set(runId, controller);
       try {
@@ -58,9 +78,17 @@ export async function createTrainingWorker(
         running.delete(runId);
       }
     },
-    // Rounds run in a thread, so the lock is renewed as usual; one run at a time keeps the two cores for scoring.
-    { ...workerOptions(c, 'training', 1), lockDuration: 60_000 },
+    // One run at a time keeps the two cores for scoring.
+    { ...workerOptions(c, 'training', 1), ...TRAINING_LOCKS },
   );
+  // A job that failed without its run ending (it stalled once too often, or the processor itself threw):
+  // the run says so instead of staying "running".
+  worker.on('failed', (job, err) => {
+    const data = job?.data as Partial<{ runId: number }> | undefined;
+    if (typeof data?.runId !== 'number') return;
+    const error = /stalled/i.test(err.message) ? INTERRUPTED_RUN_ERROR : 'The run stopped because of a problem on our side; see the worker log.';
+    void failUnfinishedRun(deps, data.runId, error).catch((e: Error) => logger().warn({ runId: data.runId, err: e.message }, 'training run not marked failed'));
+  });
   return {
     worker,
     scheduler,

@@ -8,7 +8,7 @@ import { appendAudit } from '../audit/audit-repository';
 import { publishEvents, type DomainEvent } from '../events/event-bus';
 import { makeChallenger } from '../model-registry/version-repository';
 import { TrainingCancelled, trainModelVersion, type Trainer } from './train-model-version';
-import { cancelRequested, createRun, finishRun, findRun, markRunning, saveProgress } from './training-run-repository';
+import { createRun, finishRun, findRun, markRunning, saveProgress, stopRequested } from './training-run-repository';
 import { readSchedule } from './training-schedule';
 
 /** Progress events at most this often (a few per second); the last one always goes out. */
@@ -17,7 +17,7 @@ export const PROGRESS_EVENT_MS = 250;
 const SAVE_MS = 1_000;
 /** A running run touches its row at least this often (the data set can take a while to read). */
 const HEARTBEAT_MS = 20_000;
-/** How often the run row is checked for a cancel request (the socket event is the fast path). */
+/** How often the run row is checked for a cancel request or an end decided elsewhere (the socket event is the fast path). */
 const CANCEL_POLL_MS = 2_000;
 
 export interface TrainingJobDeps {
@@ -60,8 +60,34 @@ function readableError(err: unknown): string {
  * signal, or a request stored on the run) stops after the current round and
  * registers nothing.
  */
+/** What a run says when its training process ended in the middle of it. */
+export const INTERRUPTED_RUN_ERROR = 'The training process ended in the middle of this run (stopped or killed); nothing was registered. Start the run again.';
+
+/**
+ * Ends a run that is still queued or running as failed, with `error`, and
+ * tells the open pages; false when it had ended already. For a run whose
+ * process died: its job comes back to a training worker once BullMQ finds
+ * the job's lock lapsed (a stalled job), or fails for good.
+ */
+export async function failUnfinishedRun(d: Pick<TrainingJobDeps, 'db' | 'redis' | 'config'>, runId: number, error = INTERRUPTED_RUN_ERROR): Promise<boolean> {
+  if (!(await finishRun(d.db, runId, { status: 'failed', error }))) return false;
+  logger().warn({ runId, error }, 'training run ended as failed: its job was taken back from a process that stopped');
+  const run = await findRun(d.db, runId);
+  if (run) {
+    await publishEvents(d.redis, d.config.REDIS_PREFIX, [
+      { type: 'training.progress', runId, status: 'failed', ...run.progress, points: [], modelVersionId: null, error, at: new Date().toISOString() },
+    ]).catch(() => undefined);
+  }
+  return true;
+}
+
 export async function runTraining(d: TrainingJobDeps, runId: number, external?: AbortSignal): Promise<{ status: TrainingStatus | 'skipped'; modelVersionId: number | null }> {
-  if (!(await markRunning(d.db, runId))) return { status: 'skipped', modelVersionId: null };
+  if (!(await markRunning(d.db, runId))) {
+    // No longer queued. Still running means an earlier start of this job died with its process (the job came
+    // back as stalled): the run ends as failed, visibly, rather than staying "running" for ever.
+    if (await failUnfinishedRun(d, runId)) return { status: 'failed', modelVersionId: null };
+    return { status: 'skipped', modelVersionId: null };
+  }
   const run = (await findRun(d.db, runId))!;
   const p = run.params;
   const controller = new AbortController();
@@ -91,7 +117,7 @@ export async function runTraining(d: TrainingJobDeps, runId: number, external?: 
   };
   const heartbeat = setInterval(() => void save(false), HEARTBEAT_MS);
   const cancelPoll = setInterval(() => {
-    void cancelRequested(d.db, runId).then((yes) => yes && controller.abort(), () => undefined);
+    void stopRequested(d.db, runId).then((yes) => yes && controller.abort(), () => undefined);
   }, CANCEL_POLL_MS);
   emit();
 
@@ -152,7 +178,7 @@ export async function runTraining(d: TrainingJobDeps, runId: number, external?: 
     external?.removeEventListener('abort', onExternalAbort);
   }
   await save(true);
-  await finishRun(d.db, runId, { status: status as 'completed' | 'failed' | 'cancelled', modelVersionId, error });
-  emit();
+  // Not ended here when another process ended it first (see failUnfinishedRun): what that one said stands.
+  if (await finishRun(d.db, runId, { status: status as 'completed' | 'failed' | 'cancelled', modelVersionId, error })) emit();
   return { status, modelVersionId };
 }

@@ -100,10 +100,11 @@ export async function markRunning(db: Database, id: number): Promise<boolean> {
   return affected === 1;
 }
 
+/** Progress of a run that has not ended (an ended run's row is final). */
 export async function saveProgress(db: Database, id: number, p: TrainingProgress, curve: LossPoint[] | null): Promise<void> {
   await db.sequelize.query(
     `UPDATE training_runs SET phase = ?, round = ?, total_rounds = ?, train_loss = ?, validation_loss = ?,
-       curve = COALESCE(?, curve), updated_at = UTC_TIMESTAMP(3) WHERE id = ?`,
+       curve = COALESCE(?, curve), updated_at = UTC_TIMESTAMP(3) WHERE id = ? AND status IN ('queued', 'running')`,
     {
       replacements: [p.phase.slice(0, 80), p.round, p.totalRounds, p.trainLoss, p.validationLoss, curve ? JSON.stringify(curve) : null, id],
       type: QueryTypes.UPDATE,
@@ -111,19 +112,25 @@ export async function saveProgress(db: Database, id: number, p: TrainingProgress
   );
 }
 
+/**
+ * Ends a run that has not ended yet (queued or running); true when it did. A
+ * finished run is never rewritten: whichever process ends it first is what
+ * the run says.
+ */
 export async function finishRun(
   db: Database,
   id: number,
   o: { status: 'completed' | 'failed' | 'cancelled'; modelVersionId?: number | null; error?: string | null },
-): Promise<void> {
-  await db.sequelize.query(
+): Promise<boolean> {
+  const [, affected] = (await db.sequelize.query(
     `UPDATE training_runs SET status = ?, model_version_id = ?, error = ?, phase = ?, finished_at = UTC_TIMESTAMP(3), updated_at = UTC_TIMESTAMP(3)
-     WHERE id = ?`,
+     WHERE id = ? AND status IN ('queued', 'running')`,
     {
       replacements: [o.status, o.modelVersionId ?? null, o.error?.slice(0, 500) ?? null, o.status === 'completed' ? 'registered' : o.status, id],
       type: QueryTypes.UPDATE,
     },
-  );
+  )) as unknown as [unknown, number];
+  return affected === 1;
 }
 
 /**
@@ -145,10 +152,15 @@ export async function requestCancel(db: Database, id: number): Promise<'cancelle
   return row ? 'finished' : 'missing';
 }
 
-export async function cancelRequested(db: Database, id: number): Promise<boolean> {
-  const [row] = await db.sequelize.query<{ c: Date | null }>('SELECT cancel_requested_at AS c FROM training_runs WHERE id = ?', {
+/**
+ * True when a running run should stop: a cancel was asked for, or the run is
+ * no longer running (another process ended it: after its lock lapsed the run
+ * was judged interrupted and marked failed), so it must not register anything.
+ */
+export async function stopRequested(db: Database, id: number): Promise<boolean> {
+  const [row] = await db.sequelize.query<{ c: Date | null; status: TrainingStatus }>('SELECT cancel_requested_at AS c, status FROM training_runs WHERE id = ?', {
     replacements: [id],
     type: QueryTypes.SELECT,
   });
-  return Boolean(row?.c);
+  return !row || Boolean(row.c) || row.status !== 'running';
 }
