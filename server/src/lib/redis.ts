@@ -15,6 +15,10 @@ export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: strin
     enableOfflineQueue: opts.forBullmq && !opts.failFast ? true : false,
     maxRetriesPerRequest: opts.forBullmq ? null : 1,
     retryStrategy: (times) => Math.min(times * 200, 2_000),
+    // A connection made while a restarted Redis replays its append-only file waits for "ready" (ioredis asks INFO
+    // again after Redis's own loading estimate, up to 10 s by default); ask every half second instead, so a
+    // restart costs the time Redis needs to load, not the estimate.
+    maxLoadingRetryTime: 500,
     lazyConnect: false,
   };
   return new Redis(options);
