@@ -6,6 +6,7 @@ const SUBCOMMANDS: Record<string, () => Promise<{ run: (argv: string[]) => Promi
   train: () => import('./train'),
   pipeline: () => import('./pipeline'),
   console: () => import('./console'),
+  faults: () => import('./faults'),
 };
 
 async function main(): Promise<void> {

@@ -47,6 +47,11 @@ export interface StackOptions {
   ports?: Partial<Pick<Ports, 'web' | 'db' | 'redis'>>;
   /** Worker processes: the first runs every queue (scoring, maintenance sweeper, mail...), the others scoring only. */
   workers?: number;
+  /**
+   * Training in a process of its own, named `training` (`--only=training`), with the first worker
+   * serving every other queue, as `npm start` runs it. Off: the first worker trains as well.
+   */
+  trainingProcess?: boolean;
   /** Redis append-only file (default on: the fault tests restart Redis and expect its queue back). */
   redisAppendOnly?: boolean;
   /** MariaDB's test profile (redo log flushed once a second, no binlog). Default on. */
@@ -83,12 +88,19 @@ export interface Stack {
   /** The harness's own connection, for set-up and accounting. */
   db: Database;
   apiKey: string;
-  web: AppProcess;
+  /** The web server as it runs now (a new process after `start('web')`). */
+  readonly web: AppProcess;
   workers: AppProcess[];
+  /** The training process, with `trainingProcess`. */
+  readonly training: AppProcess | undefined;
   /** SIGKILLs worker `i` (as a crash would) and resolves once it is gone. */
   killWorker(i: number): Promise<void>;
   /** Starts worker `i` again (after a kill); resolves once it is running. */
   startWorker(i: number): Promise<void>;
+  /** SIGKILLs the app process of that name (`web`, `worker-0`, `training`) and resolves once it is gone. */
+  kill(name: string): Promise<void>;
+  /** Starts that app process again after a kill; resolves once it serves (web: health check 200; a worker: its "workers running" line). */
+  start(name: string): Promise<void>;
   /** Processes that exited without being asked to (a crash). */
   unexpectedExits(): string[];
   stop(): Promise<void>;
@@ -200,24 +212,60 @@ export async function startStack(o: StackOptions): Promise<Stack> {
       await p.handle.stop(15_000);
     };
 
-    const web = spawnApp('web', 'web', WEB_SCRIPT, [], 0);
-    cleanups.push(() => stopApp(web));
+    // Every app process by name; a restarted one replaces its entry, so clean-up stops the one running now.
+    const apps = new Map<string, AppProcess>();
+    const add = (p: AppProcess) => void apps.set(p.name, p);
+    add(spawnApp('web', 'web', WEB_SCRIPT, [], 0));
     const workerCount = o.workers ?? 1;
-    const workerArgs = (i: number) => (i === 0 ? [] : ['--only=scoring']);
+    // Queue names of workers/src/index.ts; with a training process the first worker serves all the others.
+    const workerArgs = (i: number) => (i > 0 ? ['--only=scoring'] : o.trainingProcess ? ['--only=scoring,mail,outgoing,maintenance,drift'] : []);
     const workers: AppProcess[] = [];
     for (let i = 0; i < workerCount; i += 1) workers.push(spawnApp(`worker-${i}`, 'worker', WORKER_SCRIPT, workerArgs(i), i));
+    workers.forEach(add);
+    if (o.trainingProcess) add(spawnApp('training', 'worker', WORKER_SCRIPT, ['--only=training'], workerCount));
     cleanups.push(async () => {
-      for (const w of workers) await stopApp(w);
+      // Workers first, the web server last: the same order as a normal shutdown would take.
+      for (const p of [...apps.values()].reverse()) await stopApp(p);
     });
     const baseUrl = `http://127.0.0.1:${ports.web}`;
+    const appLog = (name: string) => path.join(paths.logs, `${name}.log`);
+    const untilServing = async (p: AppProcess, mark: number) => {
+      if (p.role === 'web') await waitForHttp(`${baseUrl}/api/health`, { timeoutMs: 120_000, failFast: () => exits[0] });
+      else await waitForLogLine(appLog(p.name), 'workers running', 60_000, () => exits[0], mark + 1);
+    };
     try {
-      await waitForHttp(`${baseUrl}/api/health`, { timeoutMs: 120_000, failFast: () => exits[0] });
-      for (const w of workers) await waitForLogLine(path.join(paths.logs, `${w.name}.log`), 'workers running', 60_000, () => exits[0]);
+      for (const p of apps.values()) await untilServing(p, 0);
     } catch (e) {
-      for (const p of [web, ...workers]) log(`last lines of ${p.name}.log:\n${await tailFile(path.join(paths.logs, `${p.name}.log`), 20)}`);
+      for (const p of apps.values()) log(`last lines of ${p.name}.log:\n${await tailFile(appLog(p.name), 20)}`);
       throw e;
     }
-    log(`stack up: web ${baseUrl}, MariaDB ${ports.db}, Redis ${ports.redis}, ${workerCount} worker process(es); logs in ${paths.logs}`);
+    log(
+      `stack up: web ${baseUrl}, MariaDB ${ports.db}, Redis ${ports.redis}, ${workerCount} worker process(es)` +
+        `${o.trainingProcess ? ' and a training process' : ''}; logs in ${paths.logs}`,
+    );
+
+    const appNamed = (name: string) => {
+      const p = apps.get(name);
+      if (!p) throw new Error(`no app process named ${name} (there are ${[...apps.keys()].join(', ')})`);
+      return p;
+    };
+    const kill = async (name: string) => {
+      const p = appNamed(name);
+      expected.add(p.handle);
+      p.handle.signal('SIGKILL');
+      await p.handle.exited;
+    };
+    const start = async (name: string) => {
+      const old = appNamed(name);
+      if (!old.handle.exitInfo) throw new Error(`${old.name} is still running`);
+      const mark = old.role === 'web' ? 0 : await countLines(appLog(old.name), 'workers running');
+      const script = old.role === 'web' ? WEB_SCRIPT : WORKER_SCRIPT;
+      const index = old.role === 'web' ? 0 : name === 'training' ? workerCount : workers.findIndex((w) => w.name === name);
+      const fresh = spawnApp(old.name, old.role, script, old.args, index);
+      add(fresh);
+      if (old.role === 'worker' && name !== 'training') workers[index] = fresh;
+      await untilServing(fresh, mark);
+    };
 
     return {
       name: o.name,
@@ -230,22 +278,17 @@ export async function startStack(o: StackOptions): Promise<Stack> {
       redis,
       db,
       apiKey: DEMO_API_KEY,
-      web,
+      get web() {
+        return appNamed('web');
+      },
       workers,
-      async killWorker(i) {
-        const w = workers[i];
-        expected.add(w.handle);
-        w.handle.signal('SIGKILL');
-        await w.handle.exited;
+      get training() {
+        return apps.get('training');
       },
-      async startWorker(i) {
-        const old = workers[i];
-        if (!old.handle.exitInfo) throw new Error(`${old.name} is still running`);
-        const logFile = path.join(paths.logs, `${old.name}.log`);
-        const mark = await countLines(logFile, 'workers running');
-        workers[i] = spawnApp(old.name, 'worker', WORKER_SCRIPT, old.args, i);
-        await waitForLogLine(logFile, 'workers running', 60_000, () => exits[0], mark + 1);
-      },
+      killWorker: (i) => kill(workers[i].name),
+      startWorker: (i) => start(workers[i].name),
+      kill,
+      start,
       unexpectedExits: () => [...exits],
       stop: cleanup,
     };
@@ -322,8 +365,15 @@ export class ResponseLog {
   readonly refusedTimes: number[] = [];
   /** Milliseconds from send to answer, per request. */
   readonly requestLatencies: number[] = [];
+  /** performance.now() of the first answer that said the system holds the id (accepted, or duplicate on a resend). */
+  readonly keptAt = new Map<string, number>();
+  /** 503 answers without a Retry-After header (RFC 9110 §10.2.3 lets a 503 say when to come back; ours always do). */
+  unavailableWithoutRetryAfter = 0;
+  /** Refusals whose body is not the project's error shape `{ error: { code, message } }`. */
+  refusalsOutOfShape = 0;
 
   record(id: string, a: Answer): void {
+    if ((a === 'accepted' || a === 'duplicate') && !this.keptAt.has(id)) this.keptAt.set(id, performance.now());
     const list = this.byId.get(id);
     if (list) list.push(a);
     else this.byId.set(id, [a]);
@@ -379,18 +429,34 @@ export interface LoadOptions {
 }
 
 /** One POST on loopback; resolves with the status and body, rejects on a network error or after `timeoutMs`. */
-function post(url: string, body: string, headers: Record<string, string>, timeoutMs: number, agent: http.Agent): Promise<{ status: number; text: string }> {
+function post(
+  url: string,
+  body: string,
+  headers: Record<string, string>,
+  timeoutMs: number,
+  agent: http.Agent,
+): Promise<{ status: number; text: string; retryAfter: string | undefined }> {
   return new Promise((resolve, reject) => {
     const req = http.request(url, { method: 'POST', headers: { ...headers, 'content-length': String(Buffer.byteLength(body)) }, agent, timeout: timeoutMs }, (res) => {
       const chunks: Buffer[] = [];
       res.on('data', (c: Buffer) => chunks.push(c));
-      res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8') }));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, text: Buffer.concat(chunks).toString('utf8'), retryAfter: res.headers['retry-after'] }));
       res.on('error', reject);
     });
     req.on('timeout', () => req.destroy(new Error(`no answer within ${timeoutMs} ms`)));
     req.on('error', reject);
     req.end(body);
   });
+}
+
+/** The project's one error shape: `{ error: { code, message } }`. */
+function isErrorBody(text: string): boolean {
+  try {
+    const e = (JSON.parse(text) as { error?: { code?: unknown; message?: unknown } }).error;
+    return typeof e?.code === 'string' && typeof e.message === 'string' && e.message.length > 0;
+  } catch {
+    return false;
+  }
 }
 
 export interface LoadSummary {
@@ -446,6 +512,8 @@ export async function runLoad(o: LoadOptions): Promise<LoadSummary> {
           if (results.some((r) => r.status === 'accepted')) o.log.acceptedTimes.push(performance.now());
         } else {
           o.log.refusedTimes.push(performance.now());
+          if (res.status === 503 && !res.retryAfter) o.log.unavailableWithoutRetryAfter += 1;
+          if (!isErrorBody(text)) o.log.refusalsOutOfShape += 1;
           const a: Answer = res.status === 503 ? '503' : `http-${res.status}`;
           for (const it of items) o.log.record(it.id, a);
           failed = res.status === 503 || res.status >= 500;
@@ -515,11 +583,15 @@ export interface AlertListener {
   socket: Socket;
   /** performance.now() of each queue:alert, by externalId (a second one is a duplicate push). */
   received: Map<string, number[]>;
+  /** The session cookie the socket signed in with. */
+  cookie: string;
+  /** performance.now() of each signed-in greeting (`hello`): one per connection, so a reconnection adds one. */
+  hellos: number[];
   close(): void;
 }
 
-/** Signs in through the real routes (CSRF token, then login) and returns the session cookie. */
-export async function signIn(baseUrl: string, email: string, password: string): Promise<string> {
+/** Signs in through the real routes (CSRF token, then login): the session cookie and the session's CSRF token. */
+export async function signInSession(baseUrl: string, email: string, password: string): Promise<{ cookie: string; csrfToken: string }> {
   const csrfRes = await fetch(`${baseUrl}/api/auth/csrf`, { signal: AbortSignal.timeout(10_000) });
   const cookie0 = csrfRes.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
   const { csrfToken } = (await csrfRes.json()) as { csrfToken: string };
@@ -530,9 +602,14 @@ export async function signIn(baseUrl: string, email: string, password: string): 
     signal: AbortSignal.timeout(10_000),
   });
   if (login.status !== 200) throw new Error(`sign-in of ${email} failed: ${login.status} ${await login.text()}`);
-  await login.arrayBuffer();
+  const body = (await login.json()) as { csrfToken: string };
   const fresh = login.headers.getSetCookie().map((c) => c.split(';')[0]);
-  return fresh.length > 0 ? fresh.join('; ') : cookie0;
+  return { cookie: fresh.length > 0 ? fresh.join('; ') : cookie0, csrfToken: body.csrfToken };
+}
+
+/** Signs in through the real routes (CSRF token, then login) and returns the session cookie. */
+export async function signIn(baseUrl: string, email: string, password: string): Promise<string> {
+  return (await signInSession(baseUrl, email, password)).cookie;
 }
 
 /** A signed-in investigator's socket that keeps every queue:alert by the transaction's upstream id. */
@@ -540,6 +617,8 @@ export async function listenForAlerts(baseUrl: string, email = 'investigator@dem
   const cookie = await signIn(baseUrl, email, password);
   const socket = ioClient(baseUrl, { transports: ['websocket'], extraHeaders: { Cookie: cookie }, forceNew: true, reconnection: true, reconnectionDelay: 500 });
   const received = new Map<string, number[]>();
+  const hellos: number[] = [];
+  socket.on('hello', () => void hellos.push(performance.now()));
   socket.on('queue:alert', (e: { externalId?: string }) => {
     if (!e.externalId) return;
     const at = performance.now();
@@ -558,16 +637,21 @@ export async function listenForAlerts(baseUrl: string, email = 'investigator@dem
       reject(err);
     });
   });
-  return { socket, received, close: () => socket.close() };
+  return { socket, received, cookie, hellos, close: () => socket.close() };
 }
 
 // ─── accounting ─────────────────────────────────────────────────────────────
 
 export interface Accounting {
   sent: number;
+  /** Ids answered 202 with status accepted. */
   accepted: number;
+  /** Ids the system said it holds: accepted, or duplicate on a resend (stored by an attempt whose answer was lost). */
+  kept: number;
   /** Transactions that got at least one 503. */
   refused503: number;
+  /** Transactions that got at least one connection error or time-out (counted as not accepted, and resent). */
+  connectionErrors: number;
   /** Ids never answered accepted or duplicate (refused or failed every time). */
   neverKept: number;
   /** Kept ids that are scored. */
@@ -576,41 +660,70 @@ export interface Accounting {
   lost: number;
   /** Rows in the database that are not scored at the end (whatever their answer). */
   unscoredInDb: number;
-  /** More than one row, score, alert or live push for one transaction, or a case counting an alert twice. */
+  /** More than one row, score, alert or live push for one transaction, two open cases for a card, or a case counting an alert twice. */
   duplicated: number;
-  /** Answers other than 202 and 503 (a 500, a timeout): ingest should never give those. */
+  /** HTTP answers other than 202 and 503 (a 500, a 400): ingest should never give those. */
+  httpFailures: number;
+  /** httpFailures plus connection errors and time-outs, per answer. */
   otherFailures: number;
+  /** Kept ids scored, by the model version that scored them. */
+  scoredBy: Record<string, number>;
   lostIds: string[];
   duplicateDetail: Record<string, number>;
 }
 
-interface DbRow {
-  external_id: string;
+/** One upstream id as the database holds it. */
+export interface LedgerRow {
+  externalId: string;
   rows: number;
   scored: number;
   scores: number;
   alerts: number;
+  /** Epoch ms of the (first) score row, null when unscored. */
+  scoredAt: number | null;
+  modelVersionId: number | null;
 }
 
-/** Per id, from the database: rows, scored rows, score rows and alert rows. */
-async function dbView(db: Database, tagPrefix: string): Promise<Map<string, DbRow>> {
+interface DbRow {
+  external_id: string;
+  status: string;
+  scores: number;
+  scored_at: Date | string | null;
+  model_version_id: number | null;
+  alerts: number;
+}
+
+/** Per upstream id of a run, from the database: rows, scored rows, score rows (when and by which model) and alert rows. */
+export async function readLedger(db: Database, tagPrefix: string): Promise<Map<string, LedgerRow>> {
   const rows = await db.sequelize.query<DbRow>(
-    `SELECT t.external_id, COUNT(*) AS \`rows\`, SUM(t.status = 'scored') AS scored,
+    `SELECT t.external_id, t.status,
             (SELECT COUNT(*) FROM transaction_scores s WHERE s.transaction_id = t.id) AS scores,
+            (SELECT MIN(s.scored_at) FROM transaction_scores s WHERE s.transaction_id = t.id) AS scored_at,
+            (SELECT MIN(s.model_version_id) FROM transaction_scores s WHERE s.transaction_id = t.id) AS model_version_id,
             (SELECT COUNT(*) FROM alerts a WHERE a.transaction_id = t.id) AS alerts
-     FROM transactions t WHERE t.external_id LIKE :p GROUP BY t.external_id, t.id`,
+     FROM transactions t WHERE t.external_id LIKE :p`,
     { replacements: { p: `${tagPrefix}%` }, type: QueryTypes.SELECT },
   );
-  const out = new Map<string, DbRow>();
+  const out = new Map<string, LedgerRow>();
   for (const r of rows) {
+    const scoredAt = r.scored_at === null ? null : new Date(r.scored_at).getTime();
     const prev = out.get(r.external_id);
-    const row = { external_id: r.external_id, rows: Number(r.rows), scored: Number(r.scored), scores: Number(r.scores), alerts: Number(r.alerts) };
     if (prev) {
-      prev.rows += row.rows;
-      prev.scored += row.scored;
-      prev.scores += row.scores;
-      prev.alerts += row.alerts;
-    } else out.set(r.external_id, row);
+      prev.rows += 1;
+      prev.scored += r.status === 'scored' ? 1 : 0;
+      prev.scores += Number(r.scores);
+      prev.alerts += Number(r.alerts);
+    } else {
+      out.set(r.external_id, {
+        externalId: r.external_id,
+        rows: 1,
+        scored: r.status === 'scored' ? 1 : 0,
+        scores: Number(r.scores),
+        alerts: Number(r.alerts),
+        scoredAt,
+        modelVersionId: r.model_version_id === null ? null : Number(r.model_version_id),
+      });
+    }
   }
   return out;
 }
@@ -633,12 +746,19 @@ export async function waitUntilScored(db: Database, tagPrefix: string, expectedA
   }
 }
 
-/** Every kept id in the database and scored exactly once; no alert, case count or live push twice. */
-export async function account(db: Database, tagPrefix: string, log: ResponseLog, alerts?: AlertListener): Promise<Accounting> {
-  const view = await dbView(db, tagPrefix);
+/**
+ * Every kept id in the database once and scored exactly once; no alert twice
+ * for a transaction, no live push twice, no two open cases for one card, no
+ * case whose alert count differs from its alert rows. Several of these are
+ * also unique keys of the schema (one score and one alert per transaction,
+ * one open case per card: migration 0002): counted here all the same, so a
+ * schema change that dropped one would show.
+ */
+export async function account(db: Database, tagPrefix: string, log: ResponseLog, alerts?: AlertListener, ledger?: Map<string, LedgerRow>): Promise<Accounting> {
+  const view = ledger ?? (await readLedger(db, tagPrefix));
   const kept = log.kept();
   const lostIds = kept.filter((id) => (view.get(id)?.scored ?? 0) < 1);
-  const detail: Record<string, number> = { rows: 0, scores: 0, alerts: 0, pushes: 0, caseCounts: 0 };
+  const detail: Record<string, number> = { rows: 0, scores: 0, alerts: 0, pushes: 0, caseCounts: 0, openCases: 0 };
   for (const r of view.values()) {
     if (r.rows > 1) detail.rows += 1;
     if (r.scores > 1) detail.scores += 1;
@@ -651,57 +771,98 @@ export async function account(db: Database, tagPrefix: string, log: ResponseLog,
     { type: QueryTypes.SELECT },
   );
   detail.caseCounts = Number(c.n);
-  let otherFailures = 0;
-  for (const answers of log.byId.values()) otherFailures += answers.filter((a) => a === 'error' || a.startsWith('http-')).length;
+  const [o] = await db.sequelize.query<{ n: number }>(
+    "SELECT COUNT(*) AS n FROM (SELECT card_id FROM cases WHERE status <> 'closed' GROUP BY card_id HAVING COUNT(*) > 1) twice",
+    { type: QueryTypes.SELECT },
+  );
+  detail.openCases = Number(o.n);
+  let httpFailures = 0;
+  let errors = 0;
+  for (const answers of log.byId.values()) {
+    httpFailures += answers.filter((a) => a.startsWith('http-')).length;
+    errors += answers.filter((a) => a === 'error').length;
+  }
+  const scoredBy: Record<string, number> = {};
+  for (const id of kept) {
+    const m = view.get(id)?.modelVersionId;
+    if (m !== null && m !== undefined) scoredBy[m] = (scoredBy[m] ?? 0) + 1;
+  }
   return {
     sent: log.byId.size,
     accepted: log.accepted().length,
+    kept: kept.length,
     refused503: log.refused().length,
+    connectionErrors: [...log.byId.values()].filter((a) => a.includes('error')).length,
     neverKept: log.neverKept().length,
     scored: kept.length - lostIds.length,
     lost: lostIds.length,
     unscoredInDb: [...view.values()].filter((r) => r.scored < 1).length,
     duplicated: Object.values(detail).reduce((s, v) => s + v, 0),
-    otherFailures,
+    httpFailures,
+    otherFailures: httpFailures + errors,
+    scoredBy,
     lostIds: lostIds.slice(0, 20),
     duplicateDetail: detail,
   };
 }
 
-/** A small fixed-width table. */
-export function table(headers: string[], rows: (string | number)[][]): string {
+/**
+ * Recovery after a fault, in seconds from the fault itself: until the first
+ * transaction kept after the outage (after the last 503 or connection error
+ * that followed the fault, or after the fault when ingest never refused) has
+ * its score row. So it covers both halves: ingest taking transactions again,
+ * and scoring them. Null when none was kept and scored.
+ */
+export function recoveryAfter(log: ResponseLog, ledger: Map<string, LedgerRow>, faultAt: number): number | null {
+  const outageEnd = Math.max(faultAt, ...log.refusedTimes.filter((t) => t >= faultAt));
+  let first: { at: number; id: string } | null = null;
+  for (const [id, at] of log.keptAt) if (at >= outageEnd && (first === null || at < first.at)) first = { at, id };
+  const scoredAt = first ? ledger.get(first.id)?.scoredAt : null;
+  if (!first || scoredAt === null || scoredAt === undefined) return null;
+  return Math.max(0, (scoredAt - (performance.timeOrigin + faultAt)) / 1000);
+}
+
+/** A small fixed-width table: the first column (and any in `leftAligned`) to the left, the others to the right. */
+export function table(headers: string[], rows: (string | number)[][], leftAligned: number[] = []): string {
   const cells = [headers, ...rows.map((r) => r.map(String))];
   const widths = headers.map((_, i) => Math.max(...cells.map((r) => r[i].length)));
-  const line = (r: string[]) => r.map((c, i) => (i === 0 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ');
+  const line = (r: string[]) => r.map((c, i) => (i === 0 || leftAligned.includes(i) ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ').trimEnd();
   return [line(cells[0]), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.slice(1).map(line)].join('\n');
 }
 
 export interface FaultRow {
   fault: string;
   accounting: Accounting;
-  /** Seconds from the end of the fault to the first accepted batch after it. */
+  /** Seconds from the fault to recovery (see recoveryAfter; a fault may define its own, said in `notes`). */
   recoverySeconds: number | null;
   /** Seconds from the end of the load until everything kept was scored. */
   drainSeconds: number | null;
+  /** What else the fault showed (its own checks), one short line. */
+  notes?: string;
+}
+
+export const FAULT_COLUMNS = ['fault', 'sent', 'accepted', '503', 'conn. errors', 'other', 'scored', 'lost', 'duplicated', 'recovery s', 'drain s', 'notes'];
+
+export function faultCells(r: FaultRow): (string | number)[] {
+  const a = r.accounting;
+  return [
+    r.fault,
+    a.sent,
+    a.kept,
+    a.refused503,
+    a.connectionErrors,
+    a.httpFailures,
+    a.scored,
+    a.lost,
+    a.duplicated,
+    r.recoverySeconds === null ? 'never' : r.recoverySeconds.toFixed(1),
+    r.drainSeconds === null ? 'timed out' : r.drainSeconds.toFixed(1),
+    r.notes ?? '',
+  ];
 }
 
 export function faultTable(rows: FaultRow[]): string {
-  return table(
-    ['fault', 'sent', 'accepted', '503s', 'never kept', 'scored', 'lost', 'duplicated', 'other failures', 'recovery s', 'drain s'],
-    rows.map((r) => [
-      r.fault,
-      r.accounting.sent,
-      r.accounting.accepted,
-      r.accounting.refused503,
-      r.accounting.neverKept,
-      r.accounting.scored,
-      r.accounting.lost,
-      r.accounting.duplicated,
-      r.accounting.otherFailures,
-      r.recoverySeconds === null ? 'never' : r.recoverySeconds.toFixed(1),
-      r.drainSeconds === null ? 'timed out' : r.drainSeconds.toFixed(1),
-    ]),
-  );
+  return table(FAULT_COLUMNS, rows.map(faultCells), [FAULT_COLUMNS.length - 1]);
 }
 
 // ─── one fault under load ───────────────────────────────────────────────────
@@ -712,8 +873,11 @@ export interface FaultScenario {
   tag: string;
   /** Second of the load at which `inject` starts (it runs beside the load, which goes on). */
   atSecond: number;
-  /** Causes the fault and resolves once the service is back (restarted, reconnected...). */
-  inject: () => Promise<void>;
+  /**
+   * Causes the fault and resolves once the service is back (restarted, reconnected...). Calls
+   * `mark()` at the moment of the fault itself (the kill, the stop) when that is not its start.
+   */
+  inject: (mark: () => void) => Promise<void>;
   ratePerSecond?: number;
   batchSize?: number;
   seconds?: number;
@@ -725,53 +889,65 @@ export interface FaultOutcome {
   row: FaultRow;
   log: ResponseLog;
   load: LoadSummary;
-  /** Seconds the fault lasted (inject start to its end). */
+  ledger: Map<string, LedgerRow>;
+  /** Seconds the fault lasted (the fault itself to the end of `inject`). */
   faultSeconds: number;
+  /** performance.now() of the fault itself and of the end of `inject`. */
+  faultAt: number;
+  faultEnd: number;
 }
 
 /**
- * Runs a bounded load, injects one fault in the middle of it, resends what was
- * refused (as an upstream would), waits for the backlog to be scored and does
- * the accounting. Prints the one-row fault table.
+ * Runs a bounded load (a fixed rate for a fixed time, so a bounded count),
+ * injects one fault in the middle of it, resends what was refused or failed
+ * (as an upstream would), waits for the backlog to be scored and does the
+ * accounting. Prints the one-row fault table.
  */
 export async function runFaultScenario(stack: Stack, s: FaultScenario): Promise<FaultOutcome> {
   const log = new ResponseLog();
   const seconds = s.seconds ?? 16;
+  const rate = s.ratePerSecond ?? 400;
   let faultStart = 0;
+  let faultAt = 0;
   let faultEnd = 0;
   let injected: Promise<void> | undefined;
   const load = await runLoad({
     baseUrl: stack.baseUrl,
     apiKey: stack.apiKey,
-    ratePerSecond: s.ratePerSecond ?? 400,
+    ratePerSecond: rate,
     batchSize: s.batchSize ?? 20,
     seconds,
+    maxTransactions: rate * seconds,
     make: simpleTransactions({ tag: s.tag }),
     log,
     retry: { afterMs: 1_000, maxAttempts: 10, untilMs: seconds * 1000 + 45_000 },
     onSecond: (sec) => {
       if (sec !== s.atSecond) return;
       faultStart = performance.now();
-      injected = s.inject().then(() => void (faultEnd = performance.now()));
+      injected = s.inject(() => void (faultAt ||= performance.now())).then(() => void (faultEnd = performance.now()));
+      // Awaited once the load is over; until then a failing check in it must not count as unhandled.
+      injected.catch(() => undefined);
     },
   });
   await injected;
   if (faultStart === 0) throw new Error(`the load ended before second ${s.atSecond}: the fault was never injected`);
+  faultAt ||= faultStart;
   const drainSeconds = await waitUntilScored(stack.db, s.tag, log.kept().length, s.drainTimeoutMs ?? 150_000);
   // Late pushes of the last alerts.
   await sleep(1_000);
-  const accounting = await account(stack.db, s.tag, log, s.alerts);
-  const row: FaultRow = { fault: s.fault, accounting, recoverySeconds: firstAcceptedAfter(log, faultEnd), drainSeconds };
+  const ledger = await readLedger(stack.db, s.tag);
+  const accounting = await account(stack.db, s.tag, log, s.alerts, ledger);
+  const row: FaultRow = { fault: s.fault, accounting, recoverySeconds: recoveryAfter(log, ledger, faultAt), drainSeconds };
   console.log(`\n${faultTable([row])}`);
   console.log(
     `load: ${load.sent} transactions in ${load.requests} requests (${load.retries} resent), ${load.seconds.toFixed(1)} s; ` +
-      `fault lasted ${((faultEnd - faultStart) / 1000).toFixed(1)} s; answers ${JSON.stringify(Object.fromEntries(log.http))}; ` +
-      `alerts pushed ${s.alerts?.received.size ?? 'n/a'}; duplicates ${JSON.stringify(accounting.duplicateDetail)}\n`,
+      `fault lasted ${((faultEnd - faultAt) / 1000).toFixed(1)} s; answers ${JSON.stringify(Object.fromEntries(log.http))}; ` +
+      `alerts pushed ${s.alerts?.received.size ?? 'n/a'}; scored by ${JSON.stringify(accounting.scoredBy)}; duplicates ${JSON.stringify(accounting.duplicateDetail)}\n`,
   );
-  return { row, log, load, faultSeconds: (faultEnd - faultStart) / 1000 };
+  return { row, log, load, ledger, faultSeconds: (faultEnd - faultAt) / 1000, faultAt, faultEnd };
 }
 
-/** The scoring queue seen from outside: job counts, and a wait for a job in progress. */
+/** The scoring queue seen from outside: job counts, failed jobs, and a wait for a job in progress. */
 export function watchScoringQueue(stack: Stack) {
   const connection = createRedis(stack.config, { forBullmq: true, name: 'harness' });
   connection.on('error', () => undefined);
@@ -786,6 +962,11 @@ export function watchScoringQueue(stack: Stack) {
     counts: () => q.getJobCounts('waiting', 'active', 'delayed', 'failed', 'completed'),
     /** Jobs found stalled (their worker died holding them) and put back in the queue. */
     stalled: () => stalled,
+    /** Jobs in the failed set (attempts used up, or refused as unrecoverable), with why. */
+    async failed(): Promise<{ id: string; reason: string }[]> {
+      const jobs = await q.getFailed(0, 99);
+      return jobs.map((j) => ({ id: String(j.id), reason: j.failedReason }));
+    },
     /** Resolves with the active count once a job is being processed (or 0 after `timeoutMs`). */
     async untilActive(timeoutMs: number): Promise<number> {
       const until = performance.now() + timeoutMs;
