@@ -445,7 +445,7 @@ describe('faults under load', () => {
     // A batch stored just as Redis went away is queued from the web process once Redis is back, not a sweep later.
     // Recovery: Redis replays its append-only file (under a second here) and the connections are ready within half a
     // second of that (server/src/lib/redis.ts); with ioredis's default loading re-check it took 8 s.
-    { n: 4, fault: 'Redis restart', restart: (s) => s.redis.restart(), maxRecoverySeconds: 5, maxDrainSeconds: 45 },
+    { n: 4, fault: 'Redis restart', restart: (s) => s.redis.restart(), maxRecoverySeconds: 6, maxDrainSeconds: 45 },
     // A commit whose answer was lost with the connection may leave rows the requeue sweeper has to find (60-90 s).
     { n: 5, fault: 'MariaDB restart', restart: (s) => s.mariadb.restart(), maxRecoverySeconds: 15, maxDrainSeconds: 140 },
   ];
