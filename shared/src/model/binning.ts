@@ -164,15 +164,29 @@ function fitNumeric(name: string, col: NumericColumn, o: Required<BinningOptions
 }
 
 function fitCategorical(name: string, col: CategoricalColumn, o: Required<BinningOptions>): CategoricalFeatureBins {
-  const counts = new Map<string, number>();
+  // One map lookup per row: the map gives a slot, the counts live in a typed array.
+  const slot = new Map<string, number>();
+  let cnt = new Int32Array(64);
   for (let i = 0; i < col.length; i++) {
     const v = col[i];
     if (v === null || v === undefined || v === '') continue;
-    if (typeof v !== 'string') {
-      throw new TrainingError('bad-data', `Feature "${name}" row ${i + 1}: categorical values must be strings or null`);
+    let k = slot.get(v);
+    if (k === undefined) {
+      if (typeof v !== 'string') {
+        throw new TrainingError('bad-data', `Feature "${name}" row ${i + 1}: categorical values must be strings or null`);
+      }
+      k = slot.size;
+      slot.set(v, k);
+      if (k === cnt.length) {
+        const grown = new Int32Array(2 * cnt.length);
+        grown.set(cnt);
+        cnt = grown;
+      }
     }
-    counts.set(v, (counts.get(v) ?? 0) + 1);
+    cnt[k]++;
   }
+  const counts = new Map<string, number>();
+  for (const [v, k] of slot) counts.set(v, cnt[k]);
   const ranked = [...counts.entries()].sort((a, b) => b[1] - a[1] || (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0));
   const cap = o.exact ? Number.MAX_SAFE_INTEGER : o.maxBins - 1;
   const kept = ranked.filter(([, c]) => c >= o.minCategoryCount).slice(0, cap).map(([k]) => k);
@@ -240,6 +254,45 @@ export function numericCode(cuts: ArrayLike<number>, v: number): number {
 }
 
 /**
+ * Byte codes of a numeric column over a cut table padded to 255 entries with
+ * +Inf: 8 fixed steps give #cuts < v, with arithmetic on the comparison
+ * results instead of unpredictable branches; NaN compares false everywhere
+ * (p = 0) and takes the missing code arithmetically too. Two monomorphic
+ * copies (rows in order, or through a permutation) keep the loop tight.
+ */
+function byteCodes(col: Float64Array, t: Float64Array, miss: number, out: Uint8Array): void {
+  const n = out.length;
+  for (let j = 0; j < n; j++) {
+    const v = col[j];
+    let p = +(t[127] < v) << 7;
+    p += +(t[p + 63] < v) << 6;
+    p += +(t[p + 31] < v) << 5;
+    p += +(t[p + 15] < v) << 4;
+    p += +(t[p + 7] < v) << 3;
+    p += +(t[p + 3] < v) << 2;
+    p += +(t[p + 1] < v) << 1;
+    p += +(t[p] < v);
+    out[j] = p + +(v !== v) * (miss - p);
+  }
+}
+
+function byteCodesOrdered(col: Float64Array, order: Int32Array, t: Float64Array, miss: number, out: Uint8Array): void {
+  const n = out.length;
+  for (let j = 0; j < n; j++) {
+    const v = col[order[j]];
+    let p = +(t[127] < v) << 7;
+    p += +(t[p + 63] < v) << 6;
+    p += +(t[p + 31] < v) << 5;
+    p += +(t[p + 15] < v) << 4;
+    p += +(t[p + 7] < v) << 3;
+    p += +(t[p + 3] < v) << 2;
+    p += +(t[p + 1] < v) << 1;
+    p += +(t[p] < v);
+    out[j] = p + +(v !== v) * (miss - p);
+  }
+}
+
+/**
  * Codes of one column. `order` (optional) is a row permutation: output row j
  * reads input row order[j] (the trainer groups rows by class this way).
  */
@@ -252,27 +305,10 @@ export function binColumn(bins: FeatureBins, col: NumericColumn | CategoricalCol
     const K = bins.cuts.length;
     const miss = K + 1;
     if (K <= 255 && out instanceof Uint8Array) {
-      // Branch-light search over a table padded to 255 entries with +Inf:
-      // 8 fixed steps give #cuts < v.
       const t = new Float64Array(255).fill(Infinity);
       t.set(bins.cuts);
-      for (let j = 0; j < n; j++) {
-        const v = col[order ? order[j] : j];
-        if (v !== v) {
-          out[j] = miss;
-          continue;
-        }
-        // Arithmetic on the comparison results keeps the search free of unpredictable branches.
-        let p = +(t[127] < v) << 7;
-        p += +(t[p + 63] < v) << 6;
-        p += +(t[p + 31] < v) << 5;
-        p += +(t[p + 15] < v) << 4;
-        p += +(t[p + 7] < v) << 3;
-        p += +(t[p + 3] < v) << 2;
-        p += +(t[p + 1] < v) << 1;
-        p += +(t[p] < v);
-        out[j] = p;
-      }
+      if (order) byteCodesOrdered(col, order, t, miss, out);
+      else byteCodes(col, t, miss, out);
     } else {
       const cuts = Float64Array.from(bins.cuts);
       for (let j = 0; j < n; j++) out[j] = numericCode(cuts, col[order ? order[j] : j]);
