@@ -18,7 +18,11 @@ export function createSequelize(c: Config): Sequelize {
     host: c.DB_HOST,
     port: c.DB_PORT,
     dialect: 'mariadb',
-    logging: (sql) => logger().trace({ sql: withoutLiterals(sql).slice(0, 500) }, 'sql'),
+    // Checked before any work: the statement of a 500-row insert is long, and the level is rarely trace.
+    logging: (sql) => {
+      const log = logger();
+      if (log.isLevelEnabled('trace')) log.trace({ sql: withoutLiterals(sql).slice(0, 500) }, 'sql');
+    },
     pool: { max: c.DB_POOL_MAX, min: 0, acquire: 10_000, idle: 10_000 },
     dialectOptions: { connectTimeout: 5_000 },
     // Dates travel and are stored as UTC.

@@ -2,6 +2,7 @@ import { randomUUID } from 'node:crypto';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db/database';
 import type { NormalisedTransaction } from '@shared/api/transactions';
+import { sqlDateTime } from '../db/sql-date';
 
 export type TransactionSource = 'api' | 'decision' | 'csv' | 'seed';
 
@@ -43,6 +44,7 @@ export async function storeTransactions(
   const inserted = new Map<string, number>();
   const existing = new Map<string, number>();
   if (items.length === 0) return { batch, inserted, existing };
+  const receivedAt = sqlDateTime(meta.receivedAt);
   const run = async (t: Transaction) => {
     const cards = new Map<string, NormalisedTransaction['card']>();
     for (const it of items) cards.set(it.card.panHash, it.card);
@@ -59,7 +61,7 @@ export async function storeTransactions(
       await db.sequelize.query(
         `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${todo.map(() => "(?, ?, ?, ?, 'active', ?, ?)").join(', ')}
          ON DUPLICATE KEY UPDATE id = id`,
-        { replacements: todo.flatMap((c) => [c.panHash, c.bin, c.last4, c.cardholderId, meta.receivedAt, meta.receivedAt]), type: QueryTypes.INSERT, transaction: t },
+        { replacements: todo.flatMap((c) => [c.panHash, c.bin, c.last4, c.cardholderId, receivedAt, receivedAt]), type: QueryTypes.INSERT, transaction: t },
       );
       const ids = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE pan_hash IN (:h) LOCK IN SHARE MODE', {
         replacements: { h: todo.map((c) => c.panHash) },
@@ -85,8 +87,8 @@ export async function storeTransactions(
               batch,
               meta.apiKeyId,
               cardId.get(x.card.panHash),
-              x.occurredAt,
-              meta.receivedAt,
+              sqlDateTime(x.occurredAt),
+              receivedAt,
               x.amountMinor,
               x.currency,
               x.currencyExponent,

@@ -1,6 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
+import { sqlDateTime } from '../db/sql-date';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
 import { topContributions, type Row } from '@shared/model/index';
 import { isHighRiskMcc } from '@shared/reference/mcc';
@@ -282,6 +283,7 @@ async function bulkInsert(db: Database, t: Transaction, head: string, rows: unkn
   for (let i = 0; i < rows.length; i += 500) {
     const chunk = rows.slice(i, i + 500);
     const placeholders = chunk.map((r) => `(${r.map(() => '?').join(', ')})`).join(', ');
-    await db.sequelize.query(`${head} ${placeholders}`, { replacements: chunk.flat(), type: QueryTypes.INSERT, transaction: t });
+    const values = chunk.flat().map((v) => (v instanceof Date ? sqlDateTime(v) : v));
+    await db.sequelize.query(`${head} ${placeholders}`, { replacements: values, type: QueryTypes.INSERT, transaction: t });
   }
 }
