@@ -1,6 +1,6 @@
 /**
  * Training benchmark: `npm run bench -- train [--rows 1000000] [--rounds 200] [--threads 1]
- *   [--repeat 3] [--sklearn-rows 100000] [--test-rows 200000] [--skip-xgboost] [--skip-sklearn]`.
+ *   [--repeat 3] [--sklearn-rows 100000] [--sklearn-full-rounds 10] [--test-rows 200000] [--skip-xgboost] [--skip-sklearn]`.
  *
  * One seeded synthetic fraud-like set (scripts/model/synthetic.ts: log-normal amounts,
  * hour of day, MCC-like and country-like categoricals, velocity counts, missing values;
@@ -10,7 +10,9 @@
  *             (worker_threads: histogram units and row segments split over threads);
  *   xgboost   python3-xgboost, tree_method=hist, max_depth=1, same rounds: nthread 1, and N with --threads N;
  *   sklearn   AdaBoostClassifier(SAMME) over depth-1 trees on the first --sklearn-rows rows
- *             (slow), compared pair by pair with ours on the same subset.
+ *             (slow), compared pair by pair with ours on the same subset; and on all rows for
+ *             --sklearn-full-rounds rounds (default 10; its rounds all cost the same), compared per
+ *             round with ours on all rows.
  * Categoricals reach the Python side as integer codes (ordinal), ours reads them as categories.
  * ms/round is the steady-state time between the first and the last round (ours: onRound
  * timestamps; XGBoost: an after_iteration callback; scikit-learn has no per-round hook, so
@@ -181,6 +183,7 @@ export async function run(argv: string[]): Promise<void> {
       threads: { type: 'string', default: '1' },
       repeat: { type: 'string', default: '3' },
       'sklearn-rows': { type: 'string', default: '100000' },
+      'sklearn-full-rounds': { type: 'string', default: '10' },
       'test-rows': { type: 'string', default: '200000' },
       'skip-xgboost': { type: 'boolean', default: false },
       'skip-sklearn': { type: 'boolean', default: false },
@@ -227,9 +230,10 @@ export async function run(argv: string[]): Promise<void> {
     const tsx = join(ROOT, 'node_modules/.bin/tsx');
     const ours = (n: number, th = 1) =>
       runChild(tsx, ['tests/bench/index.ts', 'train', '--child', 'ours', '--dir', dir, '--rounds', String(rounds), '--train-rows', String(n), '--threads', String(th)]);
-    const py = (which: string, n: number, th = 1) =>
-      runChild(PYTHON, [join(ROOT, 'tests/reference/bench_python.py'), which, dir, String(rounds), String(th), String(n)]);
-    const runs: Record<string, Figures[]> = { ours: [], oursThreads: [], xgboost: [], xgboostThreads: [], oursSmall: [], sklearn: [] };
+    const py = (which: string, n: number, th = 1, r = rounds) =>
+      runChild(PYTHON, [join(ROOT, 'tests/reference/bench_python.py'), which, dir, String(r), String(th), String(n)]);
+    const sklearnFullRounds = Number(values['sklearn-full-rounds']);
+    const runs: Record<string, Figures[]> = { ours: [], oursThreads: [], xgboost: [], xgboostThreads: [], oursSmall: [], sklearn: [], sklearnFull: [] };
     for (let r = 0; r < repeat; r++) {
       // Each pair runs back to back, so a ratio compares two runs that saw the same machine.
       runs.ours.push(ours(rows));
@@ -241,6 +245,8 @@ export async function run(argv: string[]): Promise<void> {
       if (!values['skip-sklearn']) {
         runs.oursSmall.push(ours(skRows));
         runs.sklearn.push(py('sklearn', skRows));
+        // The full set too, for a few rounds only (a round costs the same every round; 200 would take a quarter of an hour).
+        if (sklearnFullRounds > 0 && skRows < rows) runs.sklearnFull.push(py('sklearn', rows, 1, sklearnFullRounds));
       }
       console.log(`  run ${r + 1}/${repeat} done`);
     }
@@ -252,6 +258,7 @@ export async function run(argv: string[]): Promise<void> {
       [`xgboost (hist, depth 1, ${threads} threads)`, m.xgboostThreads],
       [`ours on ${fmtInt(skRows)} rows`, m.oursSmall],
       [`sklearn AdaBoost SAMME on ${fmtInt(skRows)} rows`, m.sklearn],
+      [`sklearn AdaBoost SAMME, ${sklearnFullRounds} rounds`, m.sklearnFull],
     ].filter(([, f]) => f) as [string, Figures][];
     console.log('');
     console.log(
@@ -288,6 +295,9 @@ export async function run(argv: string[]): Promise<void> {
       console.log(`  sklearn / ours (${fmtInt(skRows)} rows), ms per round: ${fmt(pairRatio(runs.sklearn, runs.oursSmall, 'ms_per_round'), 1)}  (goal >= 100)`);
       console.log(`  sklearn / ours (${fmtInt(skRows)} rows), fit seconds:  ${fmt(pairRatio(runs.sklearn, runs.oursSmall, 'fit_s'), 1)}`);
       console.log(`  ours - sklearn, held-out AUC:        ${fmt(m.oursSmall.auc - m.sklearn.auc, 4)}`);
+      if (m.sklearnFull) {
+        console.log(`  sklearn (${sklearnFullRounds} rounds) / ours, ${fmtInt(rows)} rows, ms per round: ${fmt(pairRatio(runs.sklearnFull, runs.ours, 'ms_per_round'), 1)}  (goal >= 100)`);
+      }
     }
     console.log('');
     const budgetMb = (rows * specs.length + 4 * 8 * rows) / 1e6;
