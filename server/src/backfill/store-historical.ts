@@ -3,6 +3,7 @@ import type { NormalisedTransaction, TransactionLabel } from '@shared/api/transa
 import { featureRow } from '@shared/features/definitions';
 import { isHighRiskMcc } from '@shared/reference/mcc';
 import type { Database } from '../db/database';
+import { retryOnDeadlock } from '../db/retry-deadlock';
 import { AppError } from '../lib/app-error';
 import { storeTransactions, type TransactionSource } from '../ingest/transaction-repository';
 import type { VelocityStore } from '../scoring/velocity';
@@ -40,13 +41,8 @@ export interface HistoricalMeta {
   labelExisting: boolean;
 }
 
-const DEADLOCK = 1213;
 /** A chunk waits on live ingest's short transactions; a few tries with a growing random pause get through. */
 const DEADLOCK_RETRIES = 8;
-const isDeadlock = (err: unknown): boolean => {
-  const e = err as { parent?: { errno?: number }; original?: { errno?: number } };
-  return e?.parent?.errno === DEADLOCK || e?.original?.errno === DEADLOCK;
-};
 
 const placeholders = (rows: number, width: number) => Array.from({ length: rows }, () => `(${Array(width).fill('?').join(', ')})`).join(', ');
 
@@ -69,15 +65,11 @@ export async function storeHistoricalBatch(
   meta: HistoricalMeta,
 ): Promise<HistoricalOutcome[]> {
   if (items.length === 0) return [];
-  for (let attempt = 0; ; attempt += 1) {
-    try {
-      return await db.sequelize.transaction((t) => storeInTransaction(db, velocity, items, meta, t));
-    } catch (err) {
-      if (!isDeadlock(err)) throw err;
-      if (attempt >= DEADLOCK_RETRIES) throw AppError.unavailable('The database is busy with concurrent writes to the same cards; nothing of this part was kept. Retry shortly.', 2);
-      await new Promise((r) => setTimeout(r, 10 + Math.random() * 40 * (attempt + 1)));
-    }
-  }
+  return retryOnDeadlock(() => db.sequelize.transaction((t) => storeInTransaction(db, velocity, items, meta, t)), {
+    retries: DEADLOCK_RETRIES,
+    pauseMs: (attempt) => 10 + Math.random() * 40 * (attempt + 1),
+    refuse: () => AppError.unavailable('The database is busy with concurrent writes to the same cards; nothing of this part was kept. Retry shortly.', 2),
+  });
 }
 
 async function storeInTransaction(

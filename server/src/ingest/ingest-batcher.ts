@@ -1,4 +1,5 @@
 import type { Database } from '../db/database';
+import { retryOnDeadlock } from '../db/retry-deadlock';
 import { AppError } from '../lib/app-error';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { storeTransactions, type TransactionSource } from './transaction-repository';
@@ -12,12 +13,7 @@ export interface StoredAndQueued {
   queued: boolean;
 }
 
-const DEADLOCK = 1213;
 const DEADLOCK_RETRIES = 8;
-const isDeadlock = (err: unknown) => {
-  const e = err as { parent?: { errno?: number }; original?: { errno?: number } };
-  return e?.parent?.errno === DEADLOCK || e?.original?.errno === DEADLOCK;
-};
 
 /** Stores a batch idempotently (retrying a deadlock) and queues its new rows as scoring jobs of at most 1,000 ids. */
 export async function storeAndQueue(
@@ -26,18 +22,12 @@ export async function storeAndQueue(
   items: NormalisedTransaction[],
   meta: { source: TransactionSource; apiKeyId: number | null; receivedAt: Date },
 ): Promise<StoredAndQueued> {
-  let stored: Awaited<ReturnType<typeof storeTransactions>> | null = null;
-  for (let attempt = 0; !stored; attempt += 1) {
-    try {
-      stored = await storeTransactions(db, items, meta);
-    } catch (err) {
-      if (!isDeadlock(err)) throw err;
-      // Batches that share cards can deadlock on the card rows' index gaps; a retry after a random
-      // pause goes through. Nothing of a rolled-back attempt is kept, so a refusal here is honest.
-      if (attempt >= DEADLOCK_RETRIES) throw AppError.unavailable('Too many concurrent batches on the same cards; nothing was accepted. Retry the same request.', 1);
-      await new Promise((r) => setTimeout(r, 5 + Math.random() * 20 * (attempt + 1)));
-    }
-  }
+  // Batches that share cards can deadlock on the card rows' index gaps; a retry after a random pause goes through.
+  const stored = await retryOnDeadlock(() => storeTransactions(db, items, meta), {
+    retries: DEADLOCK_RETRIES,
+    pauseMs: (attempt) => 5 + Math.random() * 20 * (attempt + 1),
+    refuse: () => AppError.unavailable('Too many concurrent batches on the same cards; nothing was accepted. Retry the same request.', 1),
+  });
   const ids = [...stored.inserted.values()];
   let queued = true;
   for (let i = 0; i < ids.length; i += 1000) {

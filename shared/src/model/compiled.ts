@@ -174,41 +174,34 @@ export function compileModel(model: Model): CompiledScorer {
   const tables = buildStepTables(model);
   const numeric = tables.filter((t): t is NumericStepTable => t.kind === 'numeric');
   const categorical = tables.filter((t): t is CategoricalStepTable => t.kind === 'categorical');
-  // Flat layout: padded cut tables back to back, value tables back to back.
+  // Per feature: P - 1 cuts padded with +Inf (P a power of two), and P values followed by the missing value.
   const padLen = numeric.map((t) => {
     let p = 1;
     while (p < t.cuts.length + 1) p <<= 1;
-    return p; // p - 1 cut slots, p value slots
+    return p;
   });
-  const cutOff = new Int32Array(numeric.length + 1);
-  numeric.forEach((_, i) => (cutOff[i + 1] = cutOff[i] + padLen[i]));
-  const flatCuts = new Float64Array(cutOff[numeric.length]).fill(Infinity);
-  const flatValues = new Float64Array(cutOff[numeric.length]);
-  const missingValues = new Float64Array(numeric.length);
-  numeric.forEach((t, i) => {
-    flatCuts.set(t.cuts, cutOff[i]);
-    flatValues.set(t.values, cutOff[i]);
-    // Padded value slots are never reached (their cut is +Inf), fill for safety.
-    for (let j = t.values.length; j < padLen[i]; j++) flatValues[cutOff[i] + j] = t.values[t.values.length - 1];
-    missingValues[i] = t.missing;
+  const cutTables = numeric.map((t, i) => {
+    const c = new Float64Array(padLen[i] - 1).fill(Infinity);
+    c.set(t.cuts);
+    return c;
   });
-  // Per-feature copies for the column scorer: P - 1 padded cuts, and P values followed by the missing value.
-  const cutTables = numeric.map((_, i) => flatCuts.slice(cutOff[i], cutOff[i] + padLen[i] - 1));
-  const valueTables = numeric.map((_, i) => {
+  const valueTables = numeric.map((t, i) => {
     const v = new Float64Array(padLen[i] + 1);
-    v.set(flatValues.subarray(cutOff[i], cutOff[i] + padLen[i]));
-    v[padLen[i]] = missingValues[i];
+    v.set(t.values);
+    // Padded value slots are never reached (their cut is +Inf), fill for safety.
+    v.fill(t.values[t.values.length - 1], t.values.length, padLen[i]);
+    v[padLen[i]] = t.missing;
     return v;
   });
   const catMaps = categorical.map((t) => categoryIndex({ name: t.feature, kind: 'categorical', categories: t.categories, pooledCategories: 0 }));
   const sumAlpha = totalAlpha(model);
 
   const searchPadded = (i: number, v: number): number => {
-    const base = cutOff[i];
+    const cuts = cutTables[i];
     let step = padLen[i] >> 1;
     let p = 0;
     while (step > 0) {
-      if (flatCuts[base + p + step - 1] < v) p += step;
+      if (cuts[p + step - 1] < v) p += step;
       step >>= 1;
     }
     return p;
@@ -222,7 +215,7 @@ export function compileModel(model: Model): CompiledScorer {
       let F = 0;
       for (let i = 0; i < numeric.length; i++) {
         const v = numericValue(row, numeric[i].feature);
-        F += v !== v ? missingValues[i] : flatValues[cutOff[i] + searchPadded(i, v)];
+        F += valueTables[i][v !== v ? padLen[i] : searchPadded(i, v)];
       }
       for (let i = 0; i < categorical.length; i++) {
         const t = categorical[i];
@@ -239,7 +232,8 @@ export function compileModel(model: Model): CompiledScorer {
         const t = numeric[i];
         const col = columns[t.feature];
         if (col === undefined) {
-          for (let r = 0; r < n; r++) out[r] += missingValues[i];
+          const miss = valueTables[i][padLen[i]];
+          for (let r = 0; r < n; r++) out[r] += miss;
           continue;
         }
         if (!(col instanceof Float64Array)) throw new ScoringInputError(`Feature "${t.feature}" is numeric: its column must be a Float64Array`);

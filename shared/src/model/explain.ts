@@ -69,6 +69,10 @@ function numericCondition(name: string, v: number, cuts: Float64Array, cutText: 
   return `${name} ${formatNumber(v)} in (${cutText(j - 1)}, ${cutText(j)}]`;
 }
 
+function categoricalCondition(name: string, v: string | null, other: boolean): string {
+  return v === null ? `${name} missing` : `${name} = ${v}${other ? ' (other)' : ''}`;
+}
+
 /** The cuts of every numeric step table as text, once per model. */
 const cutTexts = new WeakMap<StepTable, string[]>();
 function cutTextsOf(t: StepTable & { kind: 'numeric' }): string[] {
@@ -146,7 +150,7 @@ export function explainRow(model: Model, row: Row): Explanation {
         const label = s.match === 'category' ? s.category : s.match === 'other' ? '(other)' : '(missing)';
         stumpEffects.push({ round: t + 1, effect: e, rule: `${s.feature} ${hit ? '=' : '!='} ${label}` });
       });
-      cond = v === null ? `${table.feature} missing` : `${table.feature} = ${v}${code === C ? ' (other)' : ''}`;
+      cond = categoricalCondition(table.feature, v, code === C);
     }
     margin += g;
     const contribution = g - mean;
@@ -198,7 +202,7 @@ export function topContributions(model: Model, row: Row, k: number): Reason[] {
       const texts = cutTextsOf(t);
       cond = numericCondition(t.feature, value === null ? NaN : (value as number), t.cuts, (j) => texts[j]);
     }
-    else cond = value === null ? `${t.feature} missing` : `${t.feature} = ${value}${code === t.categories.length ? ' (other)' : ''}`;
+    else cond = categoricalCondition(t.feature, value as string | null, code === t.categories.length);
     return { feature: t.feature, featureIndex: t.featureIndex, value, contribution: c, text: `${cond}: ${formatSigned(c)}` };
   });
 }

@@ -286,6 +286,23 @@ interface SearchState {
 }
 
 /**
+ * One candidate stump with raw edge `raw` (= W r): it becomes the best so far
+ * only if |raw| beats `bestRaw` by more than `tol` (the tie-break rule).
+ * Returns the new best |raw|.
+ */
+function offer(st: SearchState, raw: number, bestRaw: number, tol: number, f: number, k: number, missingRight: boolean): number {
+  st.any = true;
+  const abs = raw < 0 ? -raw : raw;
+  if (!(abs > bestRaw + tol)) return bestRaw;
+  st.found = true;
+  st.f = f;
+  st.k = k;
+  st.missingRight = missingRight;
+  st.polarity = raw < 0 ? -1 : 1;
+  return abs;
+}
+
+/**
  * Scans every stump of one feature (see the tie-break rule in the module doc)
  * and updates `st`. r = s (2 S_right - T) / W with S_right the sum of d_i y_i on
  * the right side, from cumulative sums of the per-class histograms in true
@@ -327,64 +344,17 @@ function searchFeature(
       nLeft += cnt[k];
       const sRight = tVal - left;
       const nRight = n - cMiss - nLeft;
-      if (nRight !== 0 && nRight !== n) {
-        st.any = true;
-        const raw = 2 * sRight - T;
-        const abs = raw < 0 ? -raw : raw;
-        if (abs > bestRaw + tol) {
-          bestRaw = abs;
-          st.found = true;
-          st.f = f;
-          st.k = k;
-          st.missingRight = false;
-          st.polarity = raw < 0 ? -1 : 1;
-        }
-      }
+      if (nRight !== 0 && nRight !== n) bestRaw = offer(st, 2 * sRight - T, bestRaw, tol, f, k, false);
       if (cMiss > 0) {
         const nR = nRight + cMiss;
-        if (nR !== 0 && nR !== n) {
-          st.any = true;
-          const raw = 2 * (sRight + sMiss) - T;
-          const abs = raw < 0 ? -raw : raw;
-          if (abs > bestRaw + tol) {
-            bestRaw = abs;
-            st.found = true;
-            st.f = f;
-            st.k = k;
-            st.missingRight = true;
-            st.polarity = raw < 0 ? -1 : 1;
-          }
-        }
+        if (nR !== 0 && nR !== n) bestRaw = offer(st, 2 * (sRight + sMiss) - T, bestRaw, tol, f, k, true);
       }
     }
-    if (cMiss > 0 && cMiss !== n) {
-      st.any = true;
-      const raw = 2 * sMiss - T;
-      const abs = raw < 0 ? -raw : raw;
-      if (abs > bestRaw + tol) {
-        bestRaw = abs;
-        st.found = true;
-        st.f = f;
-        st.k = K;
-        st.missingRight = true;
-        st.polarity = raw < 0 ? -1 : 1;
-      }
-    }
+    if (cMiss > 0 && cMiss !== n) bestRaw = offer(st, 2 * sMiss - T, bestRaw, tol, f, K, true);
   } else {
     for (let c = 0; c < nC; c++) {
       const nRight = cnt[c];
-      if (nRight === 0 || nRight === n) continue;
-      st.any = true;
-      const raw = 2 * (gP * H[nC + c] - gN * H[c]) - T;
-      const abs = raw < 0 ? -raw : raw;
-      if (abs > bestRaw + tol) {
-        bestRaw = abs;
-        st.found = true;
-        st.f = f;
-        st.k = c;
-        st.missingRight = false;
-        st.polarity = raw < 0 ? -1 : 1;
-      }
+      if (nRight !== 0 && nRight !== n) bestRaw = offer(st, 2 * (gP * H[nC + c] - gN * H[c]) - T, bestRaw, tol, f, c, false);
     }
   }
   if (bestRaw !== startRaw) st.bestAbs = bestRaw / W;
