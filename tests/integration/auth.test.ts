@@ -68,6 +68,19 @@ describe('sign-in', () => {
     expect(paths).toEqual(['email', 'password']);
   });
 
+  it('signs in an e-mail whose name holds a Luhn-valid digit run, and audits that name masked', async () => {
+    // 4111111111111111 is the test card number the card schemes publish (from memory); ISO/IEC 7812 Luhn-valid.
+    const email = `pan-4111111111111111-${Math.random().toString(36).slice(2, 7)}@example.test`;
+    await createUser(ts.server.db, { email, displayName: 'digits', role: 'investigator', passwordHash: await hashPassword('right-password-1') });
+    const agent = request.agent(ts.server.http);
+    const token = await csrfToken(agent);
+    const ok = await agent.post('/api/auth/login').set('X-CSRF-Token', token).send({ email, password: 'right-password-1' });
+    expect(ok.status).toBe(200);
+    const masked = email.replace('4111111111111111', '411111••••••1111');
+    expect((await auditRows('auth.sign_in', masked)).at(-1)?.outcome).toBe('success');
+    expect(await auditRows('auth.sign_in', email)).toEqual([]);
+  });
+
   it('locks the account after repeated failures, even against the right password, until the lock is lifted', async () => {
     const email = await freshUser('lockout');
     const agent = request.agent(ts.server.http);

@@ -3,18 +3,23 @@ import { maskPansInText } from '@shared/card/pan';
 
 /** Fields whose value is a secret to check, not text to keep: masking would change what is checked. */
 const SECRET_FIELDS = new Set(['password', 'newPassword', 'token']);
+/**
+ * Sign-in compares the name as typed with the stored one: masking it would lock out an e-mail that
+ * happens to hold a Luhn-valid digit run. The sign-in audit masks the name it records instead.
+ */
+const SIGN_IN_FIELDS = new Set([...SECRET_FIELDS, 'email']);
 
 /** Masks the strings of a parsed JSON body in place (own properties only; a `__proto__` key stays a plain property). */
-function maskIn(container: Record<string, unknown> | unknown[], depth: number): void {
+function maskIn(container: Record<string, unknown> | unknown[], depth: number, keep: Set<string>): void {
   const keys = Array.isArray(container) ? container.keys() : Object.keys(container);
   for (const key of keys) {
-    if (typeof key === 'string' && SECRET_FIELDS.has(key)) continue;
+    if (typeof key === 'string' && keep.has(key)) continue;
     const value = (container as Record<string | number, unknown>)[key];
     if (typeof value === 'string') {
       const masked = maskPansInText(value);
       if (masked !== value) Object.defineProperty(container, key, { value: masked, writable: true, enumerable: true, configurable: true });
     } else if (value !== null && typeof value === 'object' && depth < 32) {
-      maskIn(value as Record<string, unknown>, depth + 1);
+      maskIn(value as Record<string, unknown>, depth + 1, keep);
     }
   }
 }
@@ -28,6 +33,6 @@ function maskIn(container: Record<string, unknown> | unknown[], depth: number): 
  * to tokenise it, are not behind this.
  */
 export const maskCardNumbersInBody: RequestHandler = (req, _res, next) => {
-  if (req.body !== null && typeof req.body === 'object') maskIn(req.body as Record<string, unknown>, 0);
+  if (req.body !== null && typeof req.body === 'object') maskIn(req.body as Record<string, unknown>, 0, req.path === '/auth/login' ? SIGN_IN_FIELDS : SECRET_FIELDS);
   next();
 };
