@@ -1,13 +1,12 @@
 import type { RequestHandler } from 'express';
 import { maskPansInText } from '@shared/card/pan';
 
-/** Fields whose value is a secret to check, not text to keep: masking would change what is checked. */
-const SECRET_FIELDS = new Set(['password', 'newPassword', 'token']);
 /**
- * Sign-in compares the name as typed with the stored one: masking it would lock out an e-mail that
- * happens to hold a Luhn-valid digit run. The sign-in audit masks the name it records instead.
+ * Fields kept as sent: secrets to check, and e-mail addresses (an address is checked at sign-in and
+ * mail is delivered to it as typed; masking one that happens to hold a Luhn-valid digit run would
+ * lock its owner out). The sign-in audit masks the name it records.
  */
-const SIGN_IN_FIELDS = new Set([...SECRET_FIELDS, 'email']);
+const KEPT_FIELDS = new Set(['password', 'newPassword', 'token', 'email']);
 
 /** Masks the strings of a parsed JSON body in place (own properties only; a `__proto__` key stays a plain property). */
 function maskIn(container: Record<string, unknown> | unknown[], depth: number, keep: Set<string>): void {
@@ -33,6 +32,6 @@ function maskIn(container: Record<string, unknown> | unknown[], depth: number, k
  * to tokenise it, are not behind this.
  */
 export const maskCardNumbersInBody: RequestHandler = (req, _res, next) => {
-  if (req.body !== null && typeof req.body === 'object') maskIn(req.body as Record<string, unknown>, 0, req.path === '/auth/login' ? SIGN_IN_FIELDS : SECRET_FIELDS);
+  if (req.body !== null && typeof req.body === 'object') maskIn(req.body as Record<string, unknown>, 0, KEPT_FIELDS);
   next();
 };
