@@ -3,7 +3,7 @@
  *
  * Steps, in order: Debian packages, private services (MariaDB with databases
  * edgecase_test and edgecase_e2e, Redis, mail catcher), type-check, lint,
- * Vitest (all projects: unit, client, integration, reliability), client build, e2e database (migrate +
+ * Vitest (unit, client, integration), the fault tests (Vitest project reliability, on their own), client build, e2e database (migrate +
  * demo seed), e2e server + workers, Playwright. Every step runs even when an
  * earlier one failed, unless it cannot (e2e without a server, integration
  * tests without services). Then a summary table, and as the last line
@@ -36,6 +36,7 @@ import {
   type AppChildSpec,
   type Services,
 } from './services/stack';
+import { VITEST_PROJECTS } from './services/vitest-projects';
 import { waitForHttp } from './services/wait';
 
 /** The app processes the end-to-end tests run against; the first is the web server. */
@@ -46,8 +47,6 @@ const E2E_CHILDREN: AppChildSpec[] = [
 
 const SELECTABLE = ['typecheck', 'lint', 'unit', 'client', 'integration', 'reliability', 'build', 'e2e'] as const;
 type Selectable = (typeof SELECTABLE)[number];
-/** Vitest projects (vite.config.ts). With all selected Vitest runs without a filter, so a new project is never left out. */
-const VITEST_PROJECTS = ['unit', 'client', 'integration', 'reliability'] as const;
 
 const HELP = `Usage: npm test [-- options]
 
@@ -79,6 +78,10 @@ interface TestCounts {
   passed: number;
   failed: number;
   skipped: number;
+  /** "file › test: first line of the error", for the summary. */
+  failures?: string[];
+  /** Tests that failed once and passed on their retry. */
+  flaky?: string[];
 }
 interface StepResult {
   name: string;
@@ -134,25 +137,74 @@ interface VitestJson {
   numFailedTests: number;
   numPendingTests: number;
   numTodoTests: number;
-  testResults: { status: string; assertionResults: { status: string }[] }[];
+  testResults: {
+    name: string;
+    status: string;
+    message?: string;
+    assertionResults: { status: string; fullName: string; failureMessages?: string[] }[];
+  }[];
 }
 
-/** Counts from Vitest's JSON report; a file that failed to load counts as one failure. */
-function vitestCounts(file: string): TestCounts | undefined {
+/** The first line of a failure message, short enough for the summary. */
+function firstLine(message: string | undefined): string {
+  const line = (message ?? '').split('\n').map((l) => l.trim()).find(Boolean) ?? '';
+  return line.length > 300 ? `${line.slice(0, 300)}…` : line;
+}
+
+/**
+ * Counts from Vitest's JSON report; a file that failed to load counts as one failure. Failures are
+ * listed by file and test name; a test that passed after a failed attempt (CI allows one retry) is
+ * listed as flaky, so a retry never hides a failure from the reader.
+ */
+function vitestCounts(file: string, root: string): TestCounts | undefined {
   if (!existsSync(file)) return undefined;
   const r = JSON.parse(readFileSync(file, 'utf8')) as VitestJson;
-  const brokenFiles = r.testResults.filter((f) => f.status === 'failed' && !f.assertionResults.some((a) => a.status === 'failed')).length;
-  return { passed: r.numPassedTests, failed: r.numFailedTests + brokenFiles, skipped: r.numPendingTests + r.numTodoTests };
+  const failures: string[] = [];
+  const flaky: string[] = [];
+  let brokenFiles = 0;
+  for (const f of r.testResults) {
+    const where = path.relative(root, f.name);
+    if (f.status === 'failed' && !f.assertionResults.some((a) => a.status === 'failed')) {
+      brokenFiles += 1;
+      failures.push(`${where}: ${firstLine(f.message) || 'the file failed outside its tests'}`);
+    }
+    for (const a of f.assertionResults) {
+      const why = firstLine(a.failureMessages?.[0]);
+      if (a.status === 'failed') failures.push(`${where} › ${a.fullName}: ${why}`);
+      else if (a.status === 'passed' && (a.failureMessages?.length ?? 0) > 0) flaky.push(`${where} › ${a.fullName}: ${why}`);
+    }
+  }
+  return { passed: r.numPassedTests, failed: r.numFailedTests + brokenFiles, skipped: r.numPendingTests + r.numTodoTests, failures, flaky };
 }
 
+interface PlaywrightSuite {
+  title: string;
+  file?: string;
+  specs?: { title: string; tests: { status: string; results: { status: string; error?: { message?: string } }[] }[] }[];
+  suites?: PlaywrightSuite[];
+}
 interface PlaywrightJson {
   stats: { expected: number; unexpected: number; flaky: number; skipped: number };
+  suites?: PlaywrightSuite[];
 }
 
 function playwrightCounts(file: string): TestCounts | undefined {
   if (!existsSync(file)) return undefined;
   const r = JSON.parse(readFileSync(file, 'utf8')) as PlaywrightJson;
-  return { passed: r.stats.expected + r.stats.flaky, failed: r.stats.unexpected, skipped: r.stats.skipped };
+  const failures: string[] = [];
+  const flaky: string[] = [];
+  const walk = (s: PlaywrightSuite, file: string) => {
+    for (const spec of s.specs ?? []) {
+      for (const t of spec.tests) {
+        const error = firstLine(t.results.find((x) => x.error)?.error?.message);
+        if (t.status === 'unexpected') failures.push(`${file} › ${spec.title}: ${error}`);
+        else if (t.status === 'flaky') flaky.push(`${file} › ${spec.title}: ${error}`);
+      }
+    }
+    for (const child of s.suites ?? []) walk(child, s.file ?? file);
+  };
+  for (const s of r.suites ?? []) walk(s, s.file ?? s.title);
+  return { passed: r.stats.expected + r.stats.flaky, failed: r.stats.unexpected, skipped: r.stats.skipped, failures, flaky };
 }
 
 /** A test run's outcome: its counts, and one failure more if it failed without a failing test (crash, no tests, bad config). */
@@ -304,21 +356,27 @@ async function main(): Promise<number> {
       // Without services the integration project cannot run, but unit and client tests still can.
       const runnable = passedStep('services') ? vitestProjects : vitestProjects.filter((p) => p !== 'integration');
       const dropped = runnable.length < vitestProjects.length;
+      // The fault tests load both cores for minutes: they run on their own, after the rest, so
+      // they do not slow the timing-sensitive unit tests down and are not slowed down by them.
+      const groups = [
+        { name: 'vitest', projects: runnable.filter((p) => p !== 'reliability'), dropped },
+        { name: 'faults', projects: runnable.filter((p) => p === 'reliability'), dropped: false },
+      ];
       if (runnable.length === 0) {
         results.push({ name: 'vitest', status: 'skipped', seconds: 0, note: 'needs services' });
-      } else {
-        await step('vitest', [], 25 * 60_000, async (s) => {
-          const report = path.join(reports, 'vitest.json');
-          const projectArgs = runnable.length === VITEST_PROJECTS.length ? [] : runnable.map((p) => `--project=${p}`);
+      }
+      for (const group of groups.filter((g) => g.projects.length > 0)) {
+        await step(group.name, [], 25 * 60_000, async (s) => {
+          const report = path.join(reports, `${group.name}.json`);
           const info = await tool(
-            'vitest',
+            group.name,
             bin('vitest'),
-            ['run', ...projectArgs, ...files, '--reporter=default', '--reporter=json', `--outputFile.json=${report}`],
+            ['run', ...group.projects.map((p) => `--project=${p}`), ...files, ...(files.length > 0 ? ['--passWithNoTests'] : []), '--reporter=default', '--reporter=json', `--outputFile.json=${report}`],
             s,
             vitestEnv,
           );
-          const outcome = testRunOutcome(info, vitestCounts(report), 'Vitest');
-          if (!dropped) return outcome;
+          const outcome = testRunOutcome(info, vitestCounts(report, root), 'Vitest');
+          if (!group.dropped) return outcome;
           return { ...outcome, tests: { ...(outcome.tests ?? { passed: 0, failed: 0 }), skipped: (outcome.tests?.skipped ?? 0) + 1 }, note: 'integration not run: services down' };
         });
       }
@@ -411,6 +469,11 @@ function summarise(results: StepResult[], interrupted: boolean): number {
     }),
     '',
   ];
+  // Failed and flaky tests by name, just above the last line, where a reader of the tail finds them.
+  for (const r of results) {
+    for (const f of r.tests?.failures ?? []) lines.push(paint('red', `failed (${r.name}): ${f}`));
+    for (const f of r.tests?.flaky ?? []) lines.push(paint('yellow', `flaky (${r.name}), passed on its retry: ${f}`));
+  }
   if (interrupted) lines.push(paint('yellow', 'interrupted: the counts cover only what ran'));
   console.log(lines.join('\n'));
   // Alone on the very last line, for people and CI to read.
