@@ -1,6 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { QueryTypes } from 'sequelize';
+import { Queue } from 'bullmq';
+import { QUEUES } from '@shared/jobs/queues';
+import { createRedis } from '../../server/src/lib/redis';
 import { createApiKey } from '../../server/src/api-keys/api-key-repository';
 import { createScoringWorker } from '../../workers/src/scoring.worker';
 import { connectSocket, csrfToken, DEMO_PASSWORD, sessionCookieOf, startTestServer, type TestServer } from './helpers/test-server';
@@ -186,10 +189,56 @@ describe('synchronous decision', () => {
     expect(['approve', 'review', 'decline']).toContain(res.body.action);
     expect(res.body.reasons.length).toBeGreaterThan(0);
     const view = await scored(t.id);
-    // The queue's score of the same transaction uses the same features, so it agrees with the decision.
+    // The stored score is the decision's own, so it agrees with the answer.
     expect(view.score.probability).toBeCloseTo(res.body.probability, 12);
     const repeat = await request(ts.server.http).post('/api/v1/decisions').set('Authorization', `Bearer ${key}`).send(t);
     expect(repeat.body.duplicate).toBe(true);
     expect(repeat.body.probability).toBeCloseTo(res.body.probability, 12);
+  });
+
+  it('stores the decision with its score, alert and case in one commit: scored when the answer arrives, pushed live, never queued for the worker', async () => {
+    const login = await (async () => {
+      const agent = request.agent(ts.server.http);
+      const token = await csrfToken(agent);
+      return agent.post('/api/auth/login').set('X-CSRF-Token', token).send({ email: 'investigator@demo.test', password: DEMO_PASSWORD });
+    })();
+    const socket = connectSocket(ts.baseUrl, sessionCookieOf(login));
+    await new Promise((resolve) => socket.on('hello', resolve));
+    const pushed: { caseId: number; created: boolean }[] = [];
+    socket.on('queue:alert', (e) => pushed.push(e));
+
+    // An amount this large alerts with the test champion (as in "alerts and cases" above).
+    const t = txn({ amount: '2975.00' }, 42424);
+    const res = await request(ts.server.http).post('/api/v1/decisions').set('Authorization', `Bearer ${key}`).send(t);
+    expect(res.status).toBe(200);
+    // No waiting: the answer comes after the commit that stored the score.
+    const view = (await get(t.id)).body.transaction;
+    expect(view.status).toBe('scored');
+    expect(view.score.probability).toBeCloseTo(res.body.probability, 12);
+    expect(view.score.modelVersionId).toBe(res.body.modelVersionId);
+    expect(view.alerted).toBe(true);
+    expect(view.caseId).not.toBeNull();
+    await waitFor(async () => pushed.some((e) => e.caseId === view.caseId) || null);
+    socket.close();
+
+    const [{ scores, features, alerts }] = await ts.server.db.sequelize.query<{ scores: number; features: number; alerts: number }>(
+      `SELECT (SELECT COUNT(*) FROM transaction_scores WHERE transaction_id = :id) AS scores,
+              (SELECT COUNT(*) FROM transaction_features WHERE transaction_id = :id) AS features,
+              (SELECT COUNT(*) FROM alerts WHERE transaction_id = :id) AS alerts`,
+      { replacements: { id: view.transactionId }, type: QueryTypes.SELECT },
+    );
+    expect([Number(scores), Number(features), Number(alerts)]).toEqual([1, 1, 1]);
+
+    // No scoring job names it (completed jobs are kept for an hour, so a job that ran would be found).
+    const connection = createRedis(ts.server.config, { forBullmq: true, name: 'test-queue-reader' });
+    const queue = new Queue(QUEUES.scoring, { connection, prefix: ts.server.config.REDIS_PREFIX });
+    try {
+      const jobs = await queue.getJobs(['completed', 'waiting', 'active', 'delayed', 'failed', 'prioritized']);
+      expect(jobs.length).toBeGreaterThan(0);
+      expect(jobs.some((j) => (j.data as { transactionIds: number[] }).transactionIds.includes(view.transactionId))).toBe(false);
+    } finally {
+      await queue.close();
+      connection.disconnect();
+    }
   });
 });

@@ -6,7 +6,7 @@ import { parseIngestBody, type NormalisedTransaction } from '@shared/api/transac
 import { normaliseTransaction } from './normalise-transaction';
 import { viewTransactions, type TransactionSource, type TransactionView } from './transaction-repository';
 import type { ScoringQueue } from './ingest-queue';
-import { storeAndQueue, type IngestBatcher } from './ingest-batcher';
+import { storeAndQueue, type IngestBatcher, type Prescored, type StoreOptions } from './ingest-batcher';
 
 export type IngestItemResult =
   | { id: string; status: 'accepted'; transactionId: number }
@@ -20,6 +20,8 @@ export interface IngestDeps {
   scoring: ScoringQueue;
   /** Groups small concurrent requests into one transaction and job; without it each request is stored alone. */
   batcher?: IngestBatcher;
+  /** Announces alerts raised by prescored rows (see Prescored). */
+  publish?: StoreOptions['publish'];
 }
 
 /** Requests with fewer valid transactions than this are grouped with concurrent ones (see IngestBatcher). */
@@ -38,8 +40,8 @@ export async function acceptTransactions(
     source: TransactionSource;
     apiKeyId: number | null;
     now?: Date;
-    /** Called with the valid transactions once they are checked, before they are stored (work that can run beside the write). */
-    beforeStore?: (valid: NormalisedTransaction[]) => void;
+    /** Scores the valid transactions before they are stored; their scores are stored with them and they are not queued. */
+    prescore?: (valid: NormalisedTransaction[]) => Promise<Prescored>;
   },
 ): Promise<{ results: IngestItemResult[]; acceptedIds: number[]; batch: string | null; normalised: Map<string, NormalisedTransaction> }> {
   const now = meta.now ?? new Date();
@@ -69,15 +71,15 @@ export async function acceptTransactions(
   }
 
   const items = valid.map((v) => v.t);
-  if (items.length > 0) meta.beforeStore?.(items);
+  const prescored = items.length > 0 && meta.prescore ? await meta.prescore(items) : undefined;
   const storeMeta = { source: meta.source, apiKeyId: meta.apiKeyId, receivedAt: now };
   // Small requests share a transaction and a scoring job with their concurrent neighbours; large ones go alone.
   const stored =
     items.length === 0
       ? null
       : d.batcher && items.length < GROUP_BELOW
-        ? await d.batcher.submit(items, storeMeta)
-        : await storeAndQueue(d.db, d.scoring, items, storeMeta);
+        ? await d.batcher.submit(items, storeMeta, prescored)
+        : await storeAndQueue(d.db, d.scoring, items, storeMeta, { prescored, publish: d.publish });
 
   const acceptedIds: number[] = [];
   if (stored) {

@@ -2,8 +2,24 @@ import type { Database } from '../db/database';
 import { retryOnDeadlock } from '../db/retry-deadlock';
 import { AppError } from '../lib/app-error';
 import type { NormalisedTransaction } from '@shared/api/transactions';
-import { storeTransactions, type TransactionSource } from './transaction-repository';
+import type { DomainEvent } from '../events/event-bus';
+import type { AlertingSettings } from '../settings/settings-repository';
+import { commitScores, pendingRowOf, type ScoredRow, type ScoreOutcome } from '../scoring/score-transactions';
+import { rememberCards, storeTransactions, type TransactionSource } from './transaction-repository';
 import type { ScoringQueue } from './ingest-queue';
+
+/**
+ * Scores computed before the store (the synchronous decision path), by upstream id: written in the
+ * same database transaction as the rows, which are inserted already scored and never queued, so the
+ * scoring worker does not compute them again and a crash leaves either both or neither.
+ */
+export type Prescored = Map<string, { o: Omit<ScoreOutcome, 'transactionId'>; settings: AlertingSettings }>;
+
+export interface StoreOptions {
+  prescored?: Prescored;
+  /** Announces the alerts a prescored store raised, after its commit. */
+  publish?: (events: DomainEvent[]) => Promise<void>;
+}
 
 export interface StoredAndQueued {
   batch: string;
@@ -15,20 +31,46 @@ export interface StoredAndQueued {
 
 const DEADLOCK_RETRIES = 8;
 
-/** Stores a batch idempotently (retrying a deadlock) and queues its new rows as scoring jobs of at most 1,000 ids. */
+/**
+ * Stores a batch idempotently (retrying a deadlock) and queues its new rows as scoring jobs of at
+ * most 1,000 ids; rows with a prescored outcome are stored with their score instead of queued.
+ */
 export async function storeAndQueue(
   db: Database,
   scoring: ScoringQueue,
   items: NormalisedTransaction[],
   meta: { source: TransactionSource; apiKeyId: number | null; receivedAt: Date },
+  opts: StoreOptions = {},
 ): Promise<StoredAndQueued> {
+  const { prescored } = opts;
+  const scored = prescored && prescored.size > 0 ? new Set(prescored.keys()) : undefined;
+  let events: DomainEvent[] = [];
+  const store = async () => {
+    if (!scored || !prescored) return storeTransactions(db, items, meta);
+    return db.sequelize.transaction(async (t) => {
+      const stored = await storeTransactions(db, items, { ...meta, scored }, t);
+      const todo: ScoredRow[] = [];
+      for (const it of items) {
+        const id = stored.inserted.get(it.externalId);
+        const p = prescored.get(it.externalId);
+        if (id === undefined || !p) continue;
+        const r = pendingRowOf(it, { id, cardId: stored.cardIds.get(it.card.panHash)! }, meta.receivedAt);
+        todo.push({ o: { ...p.o, transactionId: id }, r, settings: p.settings });
+      }
+      events = await commitScores(db, t, todo, { markScored: false });
+      return stored;
+    });
+  };
   // Batches that share cards can deadlock on the card rows' index gaps; a retry after a random pause goes through.
-  const stored = await retryOnDeadlock(() => storeTransactions(db, items, meta), {
+  const stored = await retryOnDeadlock(store, {
     retries: DEADLOCK_RETRIES,
     pauseMs: (attempt) => 5 + Math.random() * 20 * (attempt + 1),
     refuse: () => AppError.unavailable('Too many concurrent batches on the same cards; nothing was accepted. Retry the same request.', 1),
   });
-  const ids = [...stored.inserted.values()];
+  // Committed: these card ids are real rows from now on.
+  rememberCards(db, stored.cardIds);
+  if (events.length > 0) await opts.publish?.(events).catch(() => undefined);
+  const ids = [...stored.inserted].filter(([externalId]) => !scored?.has(externalId)).map(([, id]) => id);
   let queued = true;
   for (let i = 0; i < ids.length; i += 1000) {
     const job = { transactionIds: ids.slice(i, i + 1000), batch: i === 0 ? stored.batch : `${stored.batch}-${i / 1000}` };
@@ -51,6 +93,7 @@ export async function storeAndQueue(
 
 interface Submission {
   items: NormalisedTransaction[];
+  prescored?: Prescored;
   receivedAt: Date;
   resolve: (r: StoredAndQueued) => void;
   reject: (e: unknown) => void;
@@ -77,11 +120,16 @@ export class IngestBatcher {
   constructor(
     private readonly db: Database,
     private readonly scoring: ScoringQueue,
+    private readonly publish?: StoreOptions['publish'],
     /** Transactions stored together at most; flushes in progress at once at most. */
     private readonly limits = { maxItems: 1000, concurrentFlushes: 2 },
   ) {}
 
-  submit(items: NormalisedTransaction[], meta: { source: TransactionSource; apiKeyId: number | null; receivedAt: Date }): Promise<StoredAndQueued> {
+  submit(
+    items: NormalisedTransaction[],
+    meta: { source: TransactionSource; apiKeyId: number | null; receivedAt: Date },
+    prescored?: Prescored,
+  ): Promise<StoredAndQueued> {
     return new Promise((resolve, reject) => {
       const key = `${meta.source}:${meta.apiKeyId ?? ''}`;
       let g = this.waiting.get(key);
@@ -91,7 +139,7 @@ export class IngestBatcher {
         g = { meta: { source: meta.source, apiKeyId: meta.apiKeyId }, subs: [], size: 0 };
         this.waiting.set(key, g);
       }
-      g.subs.push({ items, receivedAt: meta.receivedAt, resolve, reject });
+      g.subs.push({ items, prescored, receivedAt: meta.receivedAt, resolve, reject });
       g.size += items.length;
       this.pump();
     });
@@ -111,16 +159,19 @@ export class IngestBatcher {
       // One row per upstream id: a repeat in another request of the same group is that request's duplicate.
       const seen = new Set<string>();
       const union: NormalisedTransaction[] = [];
+      const prescored: Prescored = new Map();
       for (const s of g.subs) {
         for (const t of s.items) {
           if (seen.has(t.externalId)) continue;
           seen.add(t.externalId);
           union.push(t);
+          const p = s.prescored?.get(t.externalId);
+          if (p) prescored.set(t.externalId, p);
         }
       }
       // Received when the first of them arrived: the ingest-to-scored latency includes the wait here.
       const receivedAt = new Date(Math.min(...g.subs.map((s) => s.receivedAt.getTime())));
-      const stored = await storeAndQueue(this.db, this.scoring, union, { ...g.meta, receivedAt });
+      const stored = await storeAndQueue(this.db, this.scoring, union, { ...g.meta, receivedAt }, { prescored, publish: this.publish });
       const claimed = new Set<string>();
       for (const s of g.subs) {
         const inserted = new Map<string, number>();

@@ -5,11 +5,10 @@ import type { Database } from '../db/database';
 import type { Config } from '../config/index';
 import { AppError } from '../lib/app-error';
 import { parseOrThrow } from '../lib/validate';
-import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
 import type { NormalisedTransaction } from '@shared/api/transactions';
-import { isHighRiskMcc } from '@shared/reference/mcc';
+import { publishEvents, type DomainEvent } from '../events/event-bus';
 import type { ActiveModels } from '../scoring/active-models';
-import { scoreRowWith } from '../scoring/score-transactions';
+import { pendingRowOf, scorePendingRow, type ScoreOutcome } from '../scoring/score-transactions';
 import type { VelocityStore } from '../scoring/velocity';
 import { acceptTransactions } from './accept-transactions';
 import { IngestBatcher } from './ingest-batcher';
@@ -28,7 +27,8 @@ interface IngestRouteDeps {
 const apiKey = (scope: string) => ({ kind: 'apiKey', scope }) as const;
 
 export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
-  const d = { ...routeDeps, batcher: new IngestBatcher(routeDeps.db, routeDeps.scoring) };
+  const publish = (events: DomainEvent[]) => publishEvents(routeDeps.redis, routeDeps.config.REDIS_PREFIX, events);
+  const d = { ...routeDeps, publish, batcher: new IngestBatcher(routeDeps.db, routeDeps.scoring, publish) };
   const observe = (t: NormalisedTransaction) =>
     d.velocity.observe(t.card.panHash, {
       transactionId: t.externalId,
@@ -70,20 +70,22 @@ export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
       summary: 'Score one transaction at authorisation time and recommend approve, review or decline',
       handler: async (req, res) => {
         const started = performance.now();
-        const { champion, settings } = await d.models.current();
+        const { champion, challenger, settings } = await d.models.current();
         if (!champion) throw AppError.unavailable('No champion model is active yet.', 10);
         const body = req.body && typeof req.body === 'object' && 'transactions' in req.body ? null : req.body;
         if (body === null) throw AppError.badRequest('A decision takes one transaction, not a batch.', [{ path: 'transactions', message: 'Send a single transaction object.' }]);
-        // The card's velocity state is read and updated while the transaction is being stored: the two
-        // round trips overlap instead of adding up. Observing is idempotent per transaction id, so a
-        // duplicate or a refused store leaves nothing counted twice.
-        let observed: Promise<VelocitySnapshot> | undefined;
-        const { results, normalised } = await acceptTransactions(d, body, {
+        // Velocity state first (idempotent per transaction id), then the score, which is stored in the
+        // same database transaction as the row: the scoring worker never computes it again.
+        let computed: ScoreOutcome | undefined;
+        const { results } = await acceptTransactions(d, body, {
           source: 'decision',
           apiKeyId: req.apiKey?.id ?? null,
-          beforeStore: ([t]) => {
-            observed = observe(t);
-            observed.catch(() => undefined);
+          prescore: async ([t]) => {
+            const snapshot = await observe(t);
+            // Ids are not known before the store; the score does not depend on them.
+            const o = scorePendingRow({ champion, challenger, settings }, pendingRowOf(t, { id: 0, cardId: 0 }, new Date()), snapshot);
+            computed = o;
+            return new Map([[t.externalId, { o, settings }]]);
           },
         });
         const r = results[0];
@@ -103,21 +105,7 @@ export function ingestRoutes(routeDeps: IngestRouteDeps): RouteSpec[] {
             modelVersionId: r.previous.score.modelVersionId,
           });
         }
-        const t = normalised.get(r.id)!;
-        const snapshot = await (observed ?? observe(t));
-        const row = featureRow(
-          {
-            amount: t.amount,
-            mcc: t.merchant.mcc,
-            mccHighRisk: isHighRiskMcc(t.merchant.mcc),
-            merchantCountry: t.merchant.country,
-            cardPresent: t.cardPresent,
-            channel: t.channel,
-            occurredAt: t.occurredAt,
-          },
-          snapshot,
-        );
-        const s = scoreRowWith(champion, row);
+        const s = computed!;
         res.json({
           id: r.id,
           duplicate: r.status === 'duplicate',

@@ -3,11 +3,35 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db/database';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { sqlDateTime } from '../db/sql-date';
+import { LRUCache } from 'lru-cache';
 
 export type TransactionSource = 'api' | 'decision' | 'csv' | 'seed';
 
 /** Inserts of the rows a read-back did not find, at most (see storeTransactions). */
 const MAX_PASSES = 4;
+
+/**
+ * Card ids by keyed card hash, per database, of cards known to be committed. A card row is never
+ * changed or deleted once made, so a known card needs neither the upsert nor the read-back: a
+ * request on a card seen before costs one round trip less than two. Filled only after a commit
+ * (`rememberCards`), never from inside a transaction that might still roll back.
+ */
+const knownCards = new WeakMap<Database, LRUCache<string, number>>();
+
+function cardCache(db: Database): LRUCache<string, number> {
+  let c = knownCards.get(db);
+  if (!c) {
+    c = new LRUCache<string, number>({ max: 200_000 });
+    knownCards.set(db, c);
+  }
+  return c;
+}
+
+/** Records card ids a committed store returned (see knownCards). */
+export function rememberCards(db: Database, cardIds: Map<string, number>): void {
+  const c = cardCache(db);
+  for (const [hash, id] of cardIds) c.set(hash, id);
+}
 
 /** What the API tells a caller about a stored transaction. */
 export interface TransactionView {
@@ -37,17 +61,29 @@ export interface TransactionView {
 export async function storeTransactions(
   db: Database,
   items: NormalisedTransaction[],
-  meta: { source: TransactionSource; apiKeyId: number | null; receivedAt: Date },
+  meta: {
+    source: TransactionSource;
+    apiKeyId: number | null;
+    receivedAt: Date;
+    /** Upstream ids whose score the caller writes in the same database transaction: inserted as scored, not queued. */
+    scored?: ReadonlySet<string>;
+  },
   outer?: Transaction,
-): Promise<{ batch: string; inserted: Map<string, number>; existing: Map<string, number> }> {
+): Promise<{ batch: string; inserted: Map<string, number>; existing: Map<string, number>; cardIds: Map<string, number> }> {
   const batch = randomUUID();
   const inserted = new Map<string, number>();
   const existing = new Map<string, number>();
-  if (items.length === 0) return { batch, inserted, existing };
+  const cardId = new Map<string, number>();
+  if (items.length === 0) return { batch, inserted, existing, cardIds: cardId };
   const receivedAt = sqlDateTime(meta.receivedAt);
   const run = async (t: Transaction) => {
     const cards = new Map<string, NormalisedTransaction['card']>();
-    for (const it of items) cards.set(it.card.panHash, it.card);
+    const known = cardCache(db);
+    for (const it of items) {
+      const id = known.get(it.card.panHash);
+      if (id === undefined) cards.set(it.card.panHash, it.card);
+      else cardId.set(it.card.panHash, id);
+    }
     // Sorted, so concurrent batches lock card rows in the same order and cannot deadlock on them.
     const cardRows = [...cards.values()].sort((a, b) => (a.panHash < b.panHash ? -1 : 1));
     // Insert, then read back; whatever the read does not find is inserted again. Under concurrency
@@ -55,7 +91,6 @@ export async function storeTransactions(
     // with that key ends up committed (the conflicting insert was rolled back), so "not found after
     // the insert" happens and must not turn into a lost card or a transaction answered "duplicate".
     // The reads are locking reads: they see the newest committed rows, not this transaction's snapshot.
-    const cardId = new Map<string, number>();
     for (let pass = 0, todo = cardRows; todo.length > 0; pass += 1, todo = todo.filter((c) => !cardId.has(c.panHash))) {
       if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} card rows still missing after ${MAX_PASSES} inserts`);
       await db.sequelize.query(
@@ -72,14 +107,16 @@ export async function storeTransactions(
     }
     const cols =
       '(external_id, source, ingest_batch, api_key_id, card_id, occurred_at, received_at, amount_minor, currency, currency_exponent, merchant_ref, merchant_name, mcc, merchant_country, card_present, channel, device_id, ip, lat, lon, status)';
-    const rows: { id: number; external_id: string; ingest_batch: string }[] = [];
     const found = new Set<string>();
+    // INSERT IGNORE ... RETURNING names the rows this statement inserted (MariaDB 10.5+): those are
+    // new. Only ids it did not return need the locking read, which finds the duplicates (or finds
+    // nothing, after a skip as described above, and they are inserted again).
     for (let pass = 0, todo = items; todo.length > 0; pass += 1, todo = todo.filter((x) => !found.has(x.externalId))) {
       if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} transactions still missing after ${MAX_PASSES} inserts`);
       for (let i = 0; i < todo.length; i += 500) {
         const chunk = todo.slice(i, i + 500);
-        await db.sequelize.query(
-          `INSERT IGNORE INTO transactions ${cols} VALUES ${chunk.map(() => "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 'accepted')").join(', ')}`,
+        const returned = await db.sequelize.query<{ id: number; external_id: string }>(
+          `INSERT IGNORE INTO transactions ${cols} VALUES ${chunk.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')} RETURNING id, external_id`,
           {
             replacements: chunk.flatMap((x) => [
               x.externalId,
@@ -102,26 +139,32 @@ export async function storeTransactions(
               x.ip ?? null,
               x.lat ?? null,
               x.lon ?? null,
+              meta.scored?.has(x.externalId) ? 'scored' : 'accepted',
             ]),
-            type: QueryTypes.INSERT,
+            type: QueryTypes.SELECT,
             transaction: t,
           },
         );
+        for (const r of returned) {
+          found.add(r.external_id);
+          inserted.set(r.external_id, Number(r.id));
+        }
       }
+      const rest = todo.filter((x) => !found.has(x.externalId));
+      if (rest.length === 0) break;
       const got = await db.sequelize.query<{ id: number; external_id: string; ingest_batch: string }>(
         'SELECT id, external_id, ingest_batch FROM transactions WHERE external_id IN (:ids) LOCK IN SHARE MODE',
-        { replacements: { ids: todo.map((x) => x.externalId) }, type: QueryTypes.SELECT, transaction: t },
+        { replacements: { ids: rest.map((x) => x.externalId) }, type: QueryTypes.SELECT, transaction: t },
       );
       for (const r of got) {
         found.add(r.external_id);
-        rows.push(r);
+        (r.ingest_batch === batch ? inserted : existing).set(r.external_id, Number(r.id));
       }
     }
-    for (const r of rows) (r.ingest_batch === batch ? inserted : existing).set(r.external_id, Number(r.id));
   };
   if (outer) await run(outer);
   else await db.sequelize.transaction(run);
-  return { batch, inserted, existing };
+  return { batch, inserted, existing, cardIds: cardId };
 }
 
 interface ViewRow {

@@ -3,6 +3,7 @@ import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
 import { sqlDateTime } from '../db/sql-date';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
+import type { NormalisedTransaction } from '@shared/api/transactions';
 import { topContributions, type Row } from '@shared/model/index';
 import { isHighRiskMcc } from '@shared/reference/mcc';
 import type { LoadedModel } from '../model-registry/model-repository';
@@ -24,7 +25,8 @@ export interface ScoringContext {
   settings: AlertingSettings;
 }
 
-interface PendingRow {
+/** A stored transaction as scoring reads it (joined with its card's hash). */
+export interface PendingRow {
   id: number;
   external_id: string;
   card_id: number;
@@ -60,6 +62,18 @@ export interface ScoreOutcome {
   reasons: Reason[];
   features: Row;
   alerted: boolean;
+  /** The champion that scored it and the alert threshold in force then. */
+  modelVersionId: number;
+  threshold: number;
+  /** The challenger's score of the same features, kept in shadow; null without a challenger. */
+  shadow: null | { modelVersionId: number; margin: number; probability: number; wouldAlert: boolean };
+}
+
+/** What scoring commits for one transaction: its outcome, the row it was computed from, and the alerting settings used. */
+export interface ScoredRow {
+  o: ScoreOutcome;
+  r: PendingRow;
+  settings: AlertingSettings;
 }
 
 /** Scores one feature row with a loaded model: margin, normalised margin, probability, top reasons. */
@@ -107,8 +121,8 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
     })),
   );
 
-  const outcomes = candidates.map((r, i) => score(ctx, r, snapshots[i]));
-  const events: DomainEvent[] = [];
+  const outcomes = candidates.map((r, i) => scorePendingRow(ctx, r, snapshots[i]));
+  let events: DomainEvent[] = [];
 
   await db.sequelize.transaction(async (t) => {
     const locked = await db.sequelize.query<{ id: number }>(
@@ -116,54 +130,8 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
       { replacements: { ids: candidates.map((r) => r.id) }, type: QueryTypes.SELECT, transaction: t },
     );
     const stillPending = new Set(locked.map((r) => Number(r.id)));
-    const todo = outcomes.map((o, i) => ({ o, r: candidates[i] })).filter(({ o }) => stillPending.has(o.transactionId));
-    if (todo.length === 0) return;
-    const now = new Date();
-    await bulkInsert(
-      db,
-      t,
-      'INSERT IGNORE INTO transaction_features (transaction_id, features, computed_at) VALUES',
-      todo.map(({ o }) => [o.transactionId, JSON.stringify(o.features), now]),
-    );
-    await bulkInsert(
-      db,
-      t,
-      'INSERT IGNORE INTO transaction_scores (transaction_id, model_version_id, margin, normalized_margin, probability, reasons, alerted, threshold, scored_at, latency_ms) VALUES',
-      todo.map(({ o, r }) => [
-        o.transactionId,
-        ctx.champion.id,
-        o.margin,
-        o.normalizedMargin,
-        o.probability,
-        JSON.stringify(o.reasons),
-        o.alerted,
-        ctx.settings.threshold,
-        now,
-        Math.max(0, now.getTime() - new Date(r.received_at).getTime()),
-      ]),
-    );
-    if (ctx.challenger) {
-      const ch = ctx.challenger;
-      await bulkInsert(
-        db,
-        t,
-        'INSERT IGNORE INTO shadow_scores (transaction_id, model_version_id, margin, probability, would_alert, scored_at) VALUES',
-        todo.map(({ o }) => {
-          const margin = ch.compiled.score(o.features);
-          const p = ch.compiled.probability(margin);
-          return [o.transactionId, ch.id, margin, p, p >= ctx.settings.threshold, now];
-        }),
-      );
-    }
-    await db.sequelize.query("UPDATE transactions SET status = 'scored' WHERE id IN (:ids)", {
-      replacements: { ids: todo.map(({ o }) => o.transactionId) },
-      type: QueryTypes.UPDATE,
-      transaction: t,
-    });
-    for (const { o, r } of todo) {
-      if (!o.alerted) continue;
-      events.push(await raiseAlert(ctx, t, o, r));
-    }
+    const todo = outcomes.map((o, i) => ({ o, r: candidates[i], settings: ctx.settings })).filter(({ o }) => stillPending.has(o.transactionId));
+    events = await commitScores(db, t, todo, { markScored: true });
   });
 
   // Only alerts are announced: an event per scored transaction went to every subscriber (web servers
@@ -172,7 +140,85 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
   return outcomes;
 }
 
-function score(ctx: ScoringContext, r: PendingRow, v: VelocitySnapshot): ScoreOutcome {
+/**
+ * Writes what scoring decided, inside the caller's database transaction: features, score, shadow
+ * score, the status (unless the rows were inserted already scored) and, for each alert, its case.
+ * Returns the events to publish once the transaction has committed.
+ */
+export async function commitScores(db: Database, t: Transaction, todo: ScoredRow[], opts: { markScored: boolean }): Promise<DomainEvent[]> {
+  const events: DomainEvent[] = [];
+  if (todo.length === 0) return events;
+  const now = new Date();
+  await bulkInsert(
+    db,
+    t,
+    'INSERT IGNORE INTO transaction_features (transaction_id, features, computed_at) VALUES',
+    todo.map(({ o }) => [o.transactionId, JSON.stringify(o.features), now]),
+  );
+  await bulkInsert(
+    db,
+    t,
+    'INSERT IGNORE INTO transaction_scores (transaction_id, model_version_id, margin, normalized_margin, probability, reasons, alerted, threshold, scored_at, latency_ms) VALUES',
+    todo.map(({ o, r }) => [
+      o.transactionId,
+      o.modelVersionId,
+      o.margin,
+      o.normalizedMargin,
+      o.probability,
+      JSON.stringify(o.reasons),
+      o.alerted,
+      o.threshold,
+      now,
+      Math.max(0, now.getTime() - new Date(r.received_at).getTime()),
+    ]),
+  );
+  const shadowed = todo.filter(({ o }) => o.shadow);
+  if (shadowed.length > 0) {
+    await bulkInsert(
+      db,
+      t,
+      'INSERT IGNORE INTO shadow_scores (transaction_id, model_version_id, margin, probability, would_alert, scored_at) VALUES',
+      shadowed.map(({ o }) => [o.transactionId, o.shadow!.modelVersionId, o.shadow!.margin, o.shadow!.probability, o.shadow!.wouldAlert, now]),
+    );
+  }
+  if (opts.markScored) {
+    await db.sequelize.query("UPDATE transactions SET status = 'scored' WHERE id IN (:ids)", {
+      replacements: { ids: todo.map(({ o }) => o.transactionId) },
+      type: QueryTypes.UPDATE,
+      transaction: t,
+    });
+  }
+  for (const row of todo) {
+    if (row.o.alerted) events.push(await raiseAlert(db, t, row));
+  }
+  return events;
+}
+
+/** The row scoring reads, built from a transaction as ingest normalised it (for scoring before it is stored). */
+export function pendingRowOf(t: NormalisedTransaction, ids: { id: number; cardId: number }, receivedAt: Date): PendingRow {
+  return {
+    id: ids.id,
+    external_id: t.externalId,
+    card_id: ids.cardId,
+    pan_hash: t.card.panHash,
+    occurred_at: t.occurredAt,
+    received_at: receivedAt,
+    amount_minor: t.amountMinor,
+    currency: t.currency,
+    currency_exponent: t.currencyExponent,
+    merchant_ref: t.merchant.id,
+    mcc: t.merchant.mcc,
+    merchant_country: t.merchant.country,
+    card_present: t.cardPresent ? 1 : 0,
+    channel: t.channel,
+    device_id: t.deviceId ?? null,
+    lat: t.lat ?? null,
+    lon: t.lon ?? null,
+  };
+}
+
+/** Features and score of one stored transaction with the context's champion (and challenger, in shadow). */
+export function scorePendingRow(ctx: Pick<ScoringContext, 'champion' | 'challenger' | 'settings'>, r: PendingRow, v: VelocitySnapshot): ScoreOutcome {
   const amount = r.amount_minor / 10 ** r.currency_exponent;
   const features = featureRow(
     {
@@ -187,12 +233,22 @@ function score(ctx: ScoringContext, r: PendingRow, v: VelocitySnapshot): ScoreOu
     v,
   );
   const s = scoreRowWith(ctx.champion, features);
+  const ch = ctx.challenger;
+  let shadow: ScoreOutcome['shadow'] = null;
+  if (ch) {
+    const margin = ch.compiled.score(features);
+    const probability = ch.compiled.probability(margin);
+    shadow = { modelVersionId: ch.id, margin, probability, wouldAlert: probability >= ctx.settings.threshold };
+  }
   return {
     transactionId: Number(r.id),
     externalId: r.external_id,
     ...s,
     features,
     alerted: s.probability >= ctx.settings.threshold,
+    modelVersionId: ctx.champion.id,
+    threshold: ctx.settings.threshold,
+    shadow,
   };
 }
 
@@ -202,8 +258,7 @@ function score(ctx: ScoringContext, r: PendingRow, v: VelocitySnapshot): ScoreOu
  * creates the case or updates the open one, and LAST_INSERT_ID(id) returns its
  * id either way.
  */
-async function raiseAlert(ctx: ScoringContext, t: Transaction, o: ScoreOutcome, r: PendingRow): Promise<DomainEvent> {
-  const { db, settings } = ctx;
+async function raiseAlert(db: Database, t: Transaction, { o, r, settings }: ScoredRow): Promise<DomainEvent> {
   const priority = priorityFor(o.probability, settings);
   const occurred = new Date(r.occurred_at);
   const due = new Date(Date.now() + settings.slaMinutes[priority] * 60_000);
