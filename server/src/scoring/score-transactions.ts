@@ -1,6 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
+import { retryOnDeadlock } from '../db/retry-deadlock';
 import { sqlDateTime } from '../db/sql-date';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
 import type { NormalisedTransaction } from '@shared/api/transactions';
@@ -124,7 +125,9 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
   const outcomes = candidates.map((r, i) => scorePendingRow(ctx, r, snapshots[i]));
   let events: DomainEvent[] = [];
 
-  await db.sequelize.transaction(async (t) => {
+  // A deadlock with a concurrent ingest or scoring transaction is retried here after a short random
+  // pause: failing the job would wait for the queue's backoff (half a second and more) instead.
+  await retryOnDeadlock(() => db.sequelize.transaction(async (t) => {
     const locked = await db.sequelize.query<{ id: number }>(
       "SELECT id FROM transactions WHERE id IN (:ids) AND status = 'accepted' FOR UPDATE",
       { replacements: { ids: candidates.map((r) => r.id) }, type: QueryTypes.SELECT, transaction: t },
@@ -132,6 +135,11 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
     const stillPending = new Set(locked.map((r) => Number(r.id)));
     const todo = outcomes.map((o, i) => ({ o, r: candidates[i], settings: ctx.settings })).filter(({ o }) => stillPending.has(o.transactionId));
     events = await commitScores(db, t, todo, { markScored: true });
+  }), {
+    retries: 8,
+    pauseMs: (attempt) => 2 + Math.random() * 10 * (attempt + 1),
+    // Out of tries: the job fails and the queue retries it later; nothing of this try was kept.
+    refuse: () => new Error('scoring: deadlocked on every try; the job will be retried'),
   });
 
   // Only alerts are announced: an event per scored transaction went to every subscriber (web servers
