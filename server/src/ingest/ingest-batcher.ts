@@ -116,6 +116,8 @@ interface Group {
 export class IngestBatcher {
   private readonly waiting = new Map<string, Group>();
   private running = 0;
+  /** Flushes with prescored rows in progress: at most one, see pump(). */
+  private scoredRunning = 0;
 
   constructor(
     private readonly db: Database,
@@ -145,16 +147,25 @@ export class IngestBatcher {
     });
   }
 
+  /**
+   * Starts waiting groups while flush slots are free. Groups with prescored rows (decisions) go one
+   * at a time: two of them at once write alerts and cases side by side and deadlock on those rows,
+   * and each retry's pause lands on the decision's latency; one at a time, the next group simply
+   * grows while the current one commits.
+   */
   private pump(): void {
-    while (this.running < this.limits.concurrentFlushes && this.waiting.size > 0) {
-      const [key, g] = this.waiting.entries().next().value as [string, Group];
+    for (const [key, g] of this.waiting) {
+      if (this.running >= this.limits.concurrentFlushes) return;
+      const scored = g.subs.some((s) => s.prescored && s.prescored.size > 0);
+      if (scored && this.scoredRunning > 0) continue;
       this.waiting.delete(key);
-      void this.flush(g);
+      void this.flush(g, scored);
     }
   }
 
-  private async flush(g: Group): Promise<void> {
+  private async flush(g: Group, scored = g.subs.some((s) => s.prescored && s.prescored.size > 0)): Promise<void> {
     this.running += 1;
+    if (scored) this.scoredRunning += 1;
     try {
       // One row per upstream id: a repeat in another request of the same group is that request's duplicate.
       const seen = new Set<string>();
@@ -192,6 +203,7 @@ export class IngestBatcher {
       for (const s of g.subs) s.reject(err);
     } finally {
       this.running -= 1;
+      if (scored) this.scoredRunning -= 1;
       this.pump();
     }
   }
