@@ -137,6 +137,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   subscriber.on('error', () => undefined);
   const ready = subscribeEvents(subscriber, config.REDIS_PREFIX, (e) => {
     if (e.type === 'model.changed' || e.type === 'settings.changed') models.invalidate();
+    if (e.type === 'apikeys.changed') apiKeyAuth.forget();
     bridgeEventsToSockets(hub, e);
   }).catch((err) => logger().warn({ err: (err as Error).message }, 'event subscription failed'));
   const apiKeyAuth = createApiKeyAuth(db, {
@@ -171,7 +172,14 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       ...routingRoutes({ db, redis, config }),
       ...approvalRoutes({ db, redis, config, mail, outgoing }),
       ...userRoutes({ db, config, mail, hub }),
-      ...apiKeyRoutes({ db }),
+      ...apiKeyRoutes({
+        db,
+        keysChanged: async () => {
+          apiKeyAuth.forget();
+          // The other web servers drop theirs on the event; if Redis is away, their cache time (30 s) bounds it.
+          await publishEvents(redis, config.REDIS_PREFIX, [{ type: 'apikeys.changed', at: new Date().toISOString() }]).catch(() => undefined);
+        },
+      }),
       ...auditRoutes({ db }),
       ...backfillRoutes({ db, config, velocity, hub }),
       ...modelRegistryRoutes({ db, redis, config }),

@@ -6,6 +6,7 @@ import { createMailWorker } from '../../workers/src/mail.worker';
 import { csrfToken, startTestServer, type TestServer } from './helpers/test-server';
 import { liveSocket, mailCatcher, newPerson, send, signIn, type Person } from './helpers/supervision-kit';
 import { txn } from './helpers/transactions';
+import { waitFor } from './helpers/net';
 
 let ts: TestServer;
 let admin: Person;
@@ -162,7 +163,11 @@ describe('API keys', () => {
 
     const ok = await request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).send(txn({}, 424_242));
     expect(ok.status).toBe(202);
-    // A second key, revoked before its first use (a used key stays cached by the server for up to 30 s).
+    // A key in use (so cached by the server) is refused from the next request after its revocation.
+    expect((await send(admin, 'post', `/api/admin/api-keys/${created.body.apiKey.id}/revoke`)).status).toBe(200);
+    const afterRevoke = await request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).send(txn({}, 424_244));
+    expect(afterRevoke.status).toBe(401);
+    // A second key, revoked before its first use.
     const other = await send(admin, 'post', '/api/admin/api-keys', { name: 'Retired processor', scopes: ['transactions:write'] });
     const revoked = await send(admin, 'post', `/api/admin/api-keys/${other.body.apiKey.id}/revoke`);
     expect(revoked.status).toBe(200);
@@ -172,5 +177,21 @@ describe('API keys', () => {
     expect((await send(admin, 'post', `/api/admin/api-keys/${other.body.apiKey.id}/revoke`)).status).toBe(409);
     const sup = await signIn(ts, 'supervisor@demo.test');
     expect((await sup.agent.get('/api/admin/api-keys')).status).toBe(403);
+  });
+
+  it('a revocation reaches every web server: a second server that has the key cached refuses it too', async () => {
+    // A second web server on the same database and event bus, as behind a load balancer.
+    const second = await startTestServer({ REDIS_PREFIX: ts.server.config.REDIS_PREFIX });
+    closers.push(() => second.close());
+    const created = await send(admin, 'post', '/api/admin/api-keys', { name: 'Two-server processor', scopes: ['transactions:write'] });
+    const key = created.body.key as string;
+    const viaSecond = (seed: number) => request(second.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).send(txn({}, seed));
+    expect((await viaSecond(424_250)).status).toBe(202);
+    expect((await send(admin, 'post', `/api/admin/api-keys/${created.body.apiKey.id}/revoke`)).status).toBe(200);
+    // The event travels through Redis; well inside the 30 s the cache would otherwise keep the key.
+    const began = Date.now();
+    let seed = 424_251;
+    await waitFor(async () => (await viaSecond(seed++)).status === 401, 5_000);
+    expect(Date.now() - began).toBeLessThan(5_000);
   });
 });

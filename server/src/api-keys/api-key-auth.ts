@@ -5,17 +5,23 @@ import { findApiKeyByHash, hashApiKey, touchApiKey, type ApiKeyRecord } from './
 
 const CACHE_MS = 30_000;
 
+/** The API-key guard for a scope, and `forget()`, which drops every cached key (after a revocation). */
+export type ApiKeyAuth = ((scope: string) => RequestHandler) & { forget(): void };
+
 /**
  * Bearer API keys for upstream systems. Looked-up keys are cached briefly so
- * the ingest hot path does not query the key table per request; a revoked key
- * stops working within the cache time. Sessions play no part here: a browser
- * cookie cannot reach ingest, and a key cannot reach staff routes.
+ * the ingest hot path does not query the key table per request; a revocation
+ * clears the cache of every web server at once (the `apikeys.changed` event),
+ * and the cache time bounds it if that event is lost. Sessions play no part
+ * here: a browser cookie cannot reach ingest, and a key cannot reach staff routes.
  */
-export function createApiKeyAuth(db: Database, opts: { refuseKeyHash?: string | null } = {}) {
+export function createApiKeyAuth(db: Database, opts: { refuseKeyHash?: string | null } = {}): ApiKeyAuth {
   const cache = new Map<string, { record: ApiKeyRecord | null; at: number }>();
   const lastTouched = new Map<number, number>();
+  // Bumped by forget(): a lookup that started before a revocation is not cached after it.
+  let generation = 0;
 
-  return (scope: string): RequestHandler =>
+  const guard = (scope: string): RequestHandler =>
     async (req, _res, next) => {
       try {
         const header = req.get('authorization') ?? '';
@@ -27,8 +33,9 @@ export function createApiKeyAuth(db: Database, opts: { refuseKeyHash?: string | 
         }
         let hit = cache.get(hash);
         if (!hit || Date.now() - hit.at > CACHE_MS) {
+          const started = generation;
           hit = { record: await findApiKeyByHash(db, hash), at: Date.now() };
-          cache.set(hash, hit);
+          if (started === generation) cache.set(hash, hit);
         }
         const key = hit.record;
         if (!key || key.revokedAt) throw new AppError({ status: 401, code: 'api_key_invalid', message: 'Unknown or revoked API key.' });
@@ -44,4 +51,10 @@ export function createApiKeyAuth(db: Database, opts: { refuseKeyHash?: string | 
         next(err);
       }
     };
+  return Object.assign(guard, {
+    forget() {
+      generation += 1;
+      cache.clear();
+    },
+  });
 }

@@ -19,7 +19,11 @@ const toApi = (k: ApiKeyRecord): AdminApiKey => ({
   revokedAt: iso(k.revokedAt),
 });
 
-export function apiKeyRoutes(d: { db: Database }): RouteSpec[] {
+export function apiKeyRoutes(d: {
+  db: Database;
+  /** Drops this server's cached keys and tells the other web servers to drop theirs. */
+  keysChanged: () => Promise<void>;
+}): RouteSpec[] {
   return [
     {
       method: 'get',
@@ -48,13 +52,14 @@ export function apiKeyRoutes(d: { db: Database }): RouteSpec[] {
       method: 'post',
       path: '/admin/api-keys/:id/revoke',
       access: needs('apikeys:manage'),
-      summary: 'Revoke an API key (servers stop accepting it within 30 seconds)',
+      summary: 'Revoke an API key (every web server refuses it from the next request on)',
       handler: async (req, res) => {
         const id = parseOrThrow(idParam, req.params.id, 'API key id');
         if (!(await revokeApiKey(d.db, id))) {
           const exists = (await listApiKeys(d.db)).some((k) => k.id === id);
           throw exists ? AppError.conflict('This key is revoked already.', 'already_revoked') : AppError.notFound('No such API key.');
         }
+        await d.keysChanged();
         await auditRequest(d.db, req, { action: 'apikey.revoke', targetType: 'api_key', targetId: id, outcome: 'success' });
         res.json({ apiKeys: (await listApiKeys(d.db)).map(toApi) });
       },

@@ -25,6 +25,8 @@ export type DomainEvent =
   | { type: 'case.changed'; caseId: number; status: string; assigneeId: number | null; previousAssigneeId?: number | null; teamId: number | null; at: string }
   /** Team memberships changed: web servers recompute which team rooms their sockets sit in. */
   | { type: 'teams.changed'; at: string }
+  /** An API key was revoked: every web server drops its cached keys at once. */
+  | { type: 'apikeys.changed'; at: string }
   /** A session was signed out or a person deactivated: every web server ends the sockets of that session or person room. */
   | { type: 'sessions.ended'; room: string; reason: 'signed_out' | 'deactivated' | 'expired'; at: string }
   | { type: 'model.changed'; at: string }

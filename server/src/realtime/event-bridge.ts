@@ -22,6 +22,7 @@ const PUSHED: { [T in DomainEvent['type']]: SocketEventName | null } = {
   'promotion.changed': PROMOTION_CHANGED_EVENT,
   'drift.reported': DRIFT_REPORTED_EVENT,
   'teams.changed': null,
+  'apikeys.changed': null,
   // Sent by the socket hub itself, to the ended session's or person's sockets only.
   'sessions.ended': null,
 };

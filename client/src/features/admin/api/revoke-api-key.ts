@@ -3,7 +3,7 @@ import type { AdminApiKey } from '@shared/api/admin';
 import { api } from '@/lib/api-client';
 import { apiKeysQueryOptions } from './get-api-keys';
 
-/** POST /api/admin/api-keys/:id/revoke: servers stop accepting the key within 30 seconds. */
+/** POST /api/admin/api-keys/:id/revoke: every web server refuses the key from the next request on. */
 export async function revokeApiKey(id: number): Promise<AdminApiKey[]> {
   const { apiKeys } = await api.post<{ apiKeys: AdminApiKey[] }>(`/api/admin/api-keys/${id}/revoke`);
   return apiKeys;

@@ -163,7 +163,7 @@ export function ApiKeysPanel() {
       {revoking && (
         <Dialog title={`Revoke the key of ${revoking.name}?`} onClose={() => setRevoking(null)}>
           <div className="flex flex-col gap-3 text-sm">
-            <p>The system using it is refused within 30 seconds. A revoked key cannot be restored; create a new one instead.</p>
+            <p>The system using it is refused from its next request. A revoked key cannot be restored; create a new one instead.</p>
             {revoke.isError && (
               <p role="alert" className="text-xs text-danger">
                 {revoke.error.message}
