@@ -1,3 +1,4 @@
+import { setDownloadHeaders } from '../lib/download';
 import { needs, type RouteSpec } from '../access/route-table';
 import { parseOrThrow } from '../lib/validate';
 import type { Database } from '../db/database';
@@ -38,10 +39,7 @@ export function auditRoutes(d: { db: Database }): RouteSpec[] {
         const { page: _page, pageSize: _size, ...filter } = parseOrThrow(auditQuerySchema, req.query, 'query string');
         // The export itself is recorded before it starts: who took which slice of the log.
         await auditRequest(d.db, req, { action: 'audit.export', targetType: 'audit_log', outcome: 'success', details: { filter } });
-        res.set('Content-Type', 'text/csv; charset=utf-8');
-        res.set('Cache-Control', 'no-store');
-        res.set('X-Content-Type-Options', 'nosniff');
-        res.attachment(`edgecase-audit-${new Date().toISOString().slice(0, 10)}.csv`);
+        setDownloadHeaders(res, `edgecase-audit-${new Date().toISOString().slice(0, 10)}.csv`, 'text/csv; charset=utf-8');
         await writeCsv(res, CSV_HEADER, auditRowsForExport(d.db, filter, AUDIT_EXPORT_MAX_ROWS));
       },
     },

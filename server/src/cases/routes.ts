@@ -1,3 +1,4 @@
+import { setDownloadHeaders } from '../lib/download';
 import path from 'node:path';
 import { QueryTypes } from 'sequelize';
 import { z } from 'zod';
@@ -141,10 +142,7 @@ export function caseRoutes(d: CaseDeps): RouteSpec[] {
         const full = path.resolve(root, row.storage_key);
         if (!full.startsWith(root + path.sep)) throw AppError.notFound('No such evidence on this case.');
         await auditRequest(d.db, req, { action: 'case.evidence_download', targetType: 'case', targetId: id, outcome: 'success', details: { evidenceId } });
-        res.set('Content-Type', row.content_type);
-        res.set('X-Content-Type-Options', 'nosniff');
-        res.set('Content-Security-Policy', "default-src 'none'; sandbox");
-        res.attachment(row.file_name);
+        setDownloadHeaders(res, row.file_name, row.content_type);
         // The upload folder may sit under a dot-folder (.data/): allow it explicitly.
         res.sendFile(full, { dotfiles: 'allow' });
       },

@@ -1,6 +1,4 @@
-import { createReadStream } from 'node:fs';
-import { access } from 'node:fs/promises';
-import { pipeline } from 'node:stream/promises';
+import { sendErrorReport } from '../lib/download';
 import type { Request } from 'express';
 import { z } from 'zod';
 import { needs, type RouteSpec } from '../access/route-table';
@@ -90,13 +88,7 @@ export function labelRoutes(d: { db: Database; config: Config }): RouteSpec[] {
       handler: async (req, res) => {
         const found = await visibleImport(d.db, req);
         const file = found.errorReportFile ? reportPath(labelReportRoot(d.config.UPLOAD_DIR), found.errorReportFile) : null;
-        if (!file || !(await access(file).then(() => true, () => false))) throw AppError.notFound('This import has no error report.');
-        res.set({
-          'Content-Type': 'text/csv; charset=utf-8',
-          'Content-Disposition': `attachment; filename="late-labels-${found.view.id}-errors.csv"`,
-          'Cache-Control': 'no-store',
-        });
-        await pipeline(createReadStream(file), res);
+        await sendErrorReport(res, file, `late-labels-${found.view.id}-errors.csv`);
       },
     },
   ];

@@ -79,6 +79,10 @@ async function download(url: string, role: 'supervisor' | 'data_scientist') {
   expect(res.status, url).toBe(200);
   expect(res.headers['content-type'], url).toMatch(/^text\/csv/);
   expect(res.headers['content-disposition'], url).toMatch(/^attachment/);
+  // Should a browser render it anyway: no sniffing past text/csv, and a sandbox without scripts (OWASP ASVS 4.0 V14.4.2, from memory).
+  expect(res.headers['x-content-type-options'], url).toBe('nosniff');
+  expect(res.headers['content-security-policy'], url).toBe("default-src 'none'; sandbox");
+  expect(res.headers['cache-control'], url).toBe('no-store');
   return res.body as string;
 }
 
