@@ -119,13 +119,19 @@ describe('demo feed runner', () => {
     await wait(1500);
     expect(api.sentIds().length).toBeGreaterThan(0);
     await redis.hset('unit:demo-feed:control', { paused: '1' });
-    await wait(600);
+    // The feed reads the control hash every 200 ms; on a loaded machine that can take longer, so wait
+    // until it reports itself paused (and a request already on its way has landed), then watch.
+    const pausedBy = Date.now() + 5000;
+    while (feed.stats().paused !== true && Date.now() < pausedBy) await wait(50);
+    expect(feed.stats().paused).toBe(true);
+    await wait(300);
     const atPause = api.sentIds().length;
     await wait(1500);
     expect(api.sentIds().length).toBe(atPause);
     expect((await redis.hgetall('unit:demo-feed:stats')).paused).toBe('1');
     await redis.hset('unit:demo-feed:control', { paused: '0', rate: '40' });
-    await wait(300);
+    const resumedBy = Date.now() + 5000;
+    while ((feed.stats().paused || feed.stats().rate !== 40) && Date.now() < resumedBy) await wait(50);
     const resumed = api.sentIds().length;
     await wait(2000);
     const gained = api.sentIds().length - resumed;
