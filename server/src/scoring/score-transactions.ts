@@ -1,6 +1,7 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
+import { LRUCache } from 'lru-cache';
 import { retryOnDeadlock } from '../db/retry-deadlock';
 import { sqlDateTime } from '../db/sql-date';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
@@ -86,61 +87,105 @@ export function scoreRowWith(m: LoadedModel, row: Row) {
   return { margin, normalizedMargin, probability, reasons };
 }
 
-const SELECT_PENDING = `
-  SELECT t.id, t.external_id, t.card_id, c.pan_hash, t.occurred_at, t.received_at, t.amount_minor, t.currency,
-         t.currency_exponent, t.merchant_ref, t.mcc, t.merchant_country, t.card_present, t.channel, t.device_id, t.lat, t.lon
-  FROM transactions t JOIN cards c ON c.id = t.card_id
-  WHERE t.id IN (:ids) AND t.status = 'accepted'`;
+/** The accepted rows among the ids, locked: a second worker handed the same ids waits here, then finds them scored. */
+const LOCK_PENDING = `
+  SELECT id, external_id, card_id, occurred_at, received_at, amount_minor, currency, currency_exponent,
+         merchant_ref, mcc, merchant_country, card_present, channel, device_id, lat, lon
+  FROM transactions
+  WHERE id IN (:ids) AND status = 'accepted'
+  FOR UPDATE`;
+
+/**
+ * Card hashes by card id, per database. A card row never changes once made, so its hash is read
+ * once; the locking read above then needs no join (a join would lock the card rows too, against
+ * ingest's upserts of the same cards).
+ */
+const cardHashes = new WeakMap<Database, LRUCache<number, string>>();
+
+async function panHashesOf(db: Database, t: Transaction, cardIds: number[]): Promise<Map<number, string>> {
+  let cache = cardHashes.get(db);
+  if (!cache) {
+    cache = new LRUCache<number, string>({ max: 200_000 });
+    cardHashes.set(db, cache);
+  }
+  const out = new Map<number, string>();
+  const missing: number[] = [];
+  for (const id of new Set(cardIds)) {
+    const hash = cache.get(id);
+    if (hash === undefined) missing.push(id);
+    else out.set(id, hash);
+  }
+  if (missing.length > 0) {
+    const rows = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE id IN (:ids)', {
+      replacements: { ids: missing },
+      type: QueryTypes.SELECT,
+      transaction: t,
+    });
+    for (const r of rows) {
+      out.set(Number(r.id), r.pan_hash);
+      cache.set(Number(r.id), r.pan_hash);
+    }
+  }
+  return out;
+}
 
 /**
  * Scores accepted transactions exactly once. Within one database transaction
  * the rows are locked (FOR UPDATE), so a second worker handed the same ids
- * waits and then finds them scored; features, scores, alerts and case updates
- * commit together or not at all. Velocity state is idempotent per transaction
- * id, so a retry after a crash sees the same features it saw the first time.
+ * waits and then finds them scored; velocity, features, scores, alerts and
+ * case updates happen under that lock and commit together or not at all.
+ * Velocity state is idempotent per transaction id, so a retry after a crash
+ * (or a deadlock) sees the same features it saw the first time.
  */
 export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Promise<ScoreOutcome[]> {
   if (ids.length === 0) return [];
   const { db } = ctx;
-  const candidates = await db.sequelize.query<PendingRow>(SELECT_PENDING, { replacements: { ids }, type: QueryTypes.SELECT });
-  if (candidates.length === 0) return [];
-  candidates.sort((a, b) => new Date(a.occurred_at).getTime() - new Date(b.occurred_at).getTime() || a.id - b.id);
-
-  const snapshots = await ctx.velocity.observeMany(
-    candidates.map((r) => ({
-      cardKey: r.pan_hash,
-      event: {
-        transactionId: r.external_id,
-        occurredAt: new Date(r.occurred_at),
-        amount: r.amount_minor / 10 ** r.currency_exponent,
-        merchantRef: r.merchant_ref,
-        merchantCountry: r.merchant_country,
-        lat: r.lat,
-        lon: r.lon,
-        deviceId: r.device_id,
-      },
-    })),
-  );
-
-  const outcomes = candidates.map((r, i) => scorePendingRow(ctx, r, snapshots[i]));
+  let outcomes: ScoreOutcome[] = [];
   let events: DomainEvent[] = [];
 
   // A deadlock with a concurrent ingest or scoring transaction is retried here after a short random
   // pause: failing the job would wait for the queue's backoff (half a second and more) instead.
-  await retryOnDeadlock(() => db.sequelize.transaction(async (t) => {
-    const locked = await db.sequelize.query<{ id: number }>(
-      "SELECT id FROM transactions WHERE id IN (:ids) AND status = 'accepted' FOR UPDATE",
-      { replacements: { ids: candidates.map((r) => r.id) }, type: QueryTypes.SELECT, transaction: t },
-    );
-    const stillPending = new Set(locked.map((r) => Number(r.id)));
-    const todo = outcomes.map((o, i) => ({ o, r: candidates[i], settings: ctx.settings })).filter(({ o }) => stillPending.has(o.transactionId));
-    events = await commitScores(db, t, todo, { markScored: true });
-  }), {
-    retries: 8,
-    pauseMs: (attempt) => 2 + Math.random() * 10 * (attempt + 1),
-    // Out of tries: the job fails and the queue retries it later; nothing of this try was kept.
-    refuse: () => new Error('scoring: deadlocked on every try; the job will be retried'),
-  });
+  await retryOnDeadlock(
+    () =>
+      db.sequelize.transaction(async (t) => {
+        outcomes = [];
+        events = [];
+        const locked = await db.sequelize.query<Omit<PendingRow, 'pan_hash'>>(LOCK_PENDING, { replacements: { ids }, type: QueryTypes.SELECT, transaction: t });
+        if (locked.length === 0) return;
+        const hashes = await panHashesOf(db, t, locked.map((r) => Number(r.card_id)));
+        const candidates: PendingRow[] = locked
+          .map((r) => ({ ...r, pan_hash: hashes.get(Number(r.card_id))! }))
+          .sort((a, b) => new Date(a.occurred_at).getTime() - new Date(b.occurred_at).getTime() || a.id - b.id);
+        const snapshots = await ctx.velocity.observeMany(
+          candidates.map((r) => ({
+            cardKey: r.pan_hash,
+            event: {
+              transactionId: r.external_id,
+              occurredAt: new Date(r.occurred_at),
+              amount: r.amount_minor / 10 ** r.currency_exponent,
+              merchantRef: r.merchant_ref,
+              merchantCountry: r.merchant_country,
+              lat: r.lat,
+              lon: r.lon,
+              deviceId: r.device_id,
+            },
+          })),
+        );
+        outcomes = candidates.map((r, i) => scorePendingRow(ctx, r, snapshots[i]));
+        events = await commitScores(
+          db,
+          t,
+          outcomes.map((o, i) => ({ o, r: candidates[i], settings: ctx.settings })),
+          { markScored: true },
+        );
+      }),
+    {
+      retries: 8,
+      pauseMs: (attempt) => 2 + Math.random() * 10 * (attempt + 1),
+      // Out of tries: the job fails and the queue retries it later; nothing of this try was kept.
+      refuse: () => new Error('scoring: deadlocked on every try; the job will be retried'),
+    },
+  );
 
   // Only alerts are announced: an event per scored transaction went to every subscriber (web servers
   // and workers), each parsing it, and nobody listened to it.
