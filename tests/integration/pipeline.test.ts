@@ -26,6 +26,18 @@ async function scored(id: string) {
   });
 }
 
+/** The demo investigator's live socket, signed in through the API, and the queue alerts it has heard. */
+async function investigatorAlerts() {
+  const agent = request.agent(ts.server.http);
+  const token = await csrfToken(agent);
+  const login = await agent.post('/api/auth/login').set('X-CSRF-Token', token).send({ email: 'investigator@demo.test', password: DEMO_PASSWORD });
+  const socket = connectSocket(ts.baseUrl, sessionCookieOf(login));
+  await new Promise((resolve) => socket.on('hello', resolve));
+  const pushed: { caseId: number; created: boolean }[] = [];
+  socket.on('queue:alert', (e) => pushed.push(e));
+  return { socket, pushed };
+}
+
 beforeAll(async () => {
   ts = await startTestServer();
   await installChampion(ts.server.db);
@@ -114,15 +126,7 @@ describe('ingest API', () => {
 
 describe('alerts and cases', () => {
   it('raises an alert above the threshold, opens a case for the card, joins later alerts to it, and pushes it live', async () => {
-    const login = await (async () => {
-      const agent = request.agent(ts.server.http);
-      const token = await csrfToken(agent);
-      return agent.post('/api/auth/login').set('X-CSRF-Token', token).send({ email: 'investigator@demo.test', password: DEMO_PASSWORD });
-    })();
-    const socket = connectSocket(ts.baseUrl, sessionCookieOf(login));
-    await new Promise((resolve) => socket.on('hello', resolve));
-    const pushed: { caseId: number; created: boolean }[] = [];
-    socket.on('queue:alert', (e) => pushed.push(e));
+    const { socket, pushed } = await investigatorAlerts();
 
     const panSeed = 777;
     const first = txn({ amount: '2900.00' }, panSeed);
@@ -197,15 +201,7 @@ describe('synchronous decision', () => {
   });
 
   it('stores the decision with its score, alert and case in one commit: scored when the answer arrives, pushed live, never queued for the worker', async () => {
-    const login = await (async () => {
-      const agent = request.agent(ts.server.http);
-      const token = await csrfToken(agent);
-      return agent.post('/api/auth/login').set('X-CSRF-Token', token).send({ email: 'investigator@demo.test', password: DEMO_PASSWORD });
-    })();
-    const socket = connectSocket(ts.baseUrl, sessionCookieOf(login));
-    await new Promise((resolve) => socket.on('hello', resolve));
-    const pushed: { caseId: number; created: boolean }[] = [];
-    socket.on('queue:alert', (e) => pushed.push(e));
+    const { socket, pushed } = await investigatorAlerts();
 
     // An amount this large alerts with the test champion (as in "alerts and cases" above).
     const t = txn({ amount: '2975.00' }, 42424);

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { Op, QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db/database';
 import { scrubDigits } from '../lib/logger';
+import { maskPansInText } from '@shared/card/pan';
 
 export type AuditOutcome = 'success' | 'failure' | 'denied';
 export type ActorType = 'user' | 'api_key' | 'system' | 'anonymous';
@@ -65,6 +66,9 @@ function str(v: string | number | null | undefined, max: number): string | null 
   return String(v).slice(0, max);
 }
 
+/** Free text from outside (a typed sign-in name, a User-Agent): kept, but never a card number in it (the log is long-lived and append-only). */
+const text = (v: string | null | undefined, max: number): string | null => (v === null || v === undefined ? null : maskPansInText(String(v)).slice(0, max));
+
 /** Appends one audit row, extending the hash chain under a row lock on the chain head. */
 export async function appendAudit(db: Database, entry: AuditEntry, outer?: Transaction): Promise<AuditRow> {
   const run = async (t: Transaction): Promise<AuditRow> => {
@@ -79,13 +83,13 @@ export async function appendAudit(db: Database, entry: AuditEntry, outer?: Trans
       occurredAt: occurredAt.toISOString(),
       actorType: entry.actorType,
       actorId: str(entry.actorId, 64),
-      actorLabel: str(entry.actorLabel, 254),
+      actorLabel: text(entry.actorLabel, 254),
       action: entry.action.slice(0, 64),
       targetType: str(entry.targetType, 32),
       targetId: str(entry.targetId, 64),
       outcome: entry.outcome,
       ip: str(entry.ip, 45),
-      userAgent: str(entry.userAgent, 255),
+      userAgent: text(entry.userAgent, 255),
       details,
     };
     // The update trigger forbids sealing a row after insert, so the id comes from the

@@ -12,7 +12,6 @@ import type { CsrfSync } from 'csrf-sync';
 import type { LoginLimiter } from './login-limiter';
 import { signIn, type SignInResult } from './sign-in';
 import type { SocketHub } from '../realtime/socket-hub';
-import { maskPansInText } from '@shared/card/pan';
 
 interface AuthDeps {
   db: Database;
@@ -69,7 +68,7 @@ export function authRoutes(d: AuthDeps): RouteSpec[] {
         if (wait > 0) {
           await auditRequest(d.db, req, {
             action: 'auth.sign_in',
-            actorLabel: typeof req.body?.email === 'string' ? maskPansInText(req.body.email) : undefined,
+            actorLabel: typeof req.body?.email === 'string' ? req.body.email : undefined,
             targetType: 'user',
             outcome: 'denied',
             details: { reason: 'rate limited', retryAfterSeconds: wait },

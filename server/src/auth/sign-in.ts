@@ -11,7 +11,6 @@ import {
   type UserRecord,
 } from './user-repository';
 import type { SessionUser } from '@shared/api/auth';
-import { maskPansInText } from '@shared/card/pan';
 
 export type SignInResult =
   | { ok: true; user: SessionUser }
@@ -55,8 +54,7 @@ export async function signIn(
     appendAudit(db, {
       actorType: u ? 'user' : 'anonymous',
       actorId: u?.id ?? null,
-      // What was typed as the name is kept, but never a card number in it (the audit log is long-lived).
-      actorLabel: maskPansInText(email),
+      actorLabel: email,
       action: 'auth.sign_in',
       targetType: 'user',
       targetId: u?.id ?? null,

@@ -43,7 +43,7 @@ export async function acceptTransactions(
     /** Scores the valid transactions before they are stored; their scores are stored with them and they are not queued. */
     prescore?: (valid: NormalisedTransaction[]) => Promise<Prescored>;
   },
-): Promise<{ results: IngestItemResult[]; acceptedIds: number[]; batch: string | null; normalised: Map<string, NormalisedTransaction> }> {
+): Promise<{ results: IngestItemResult[]; acceptedIds: number[]; batch: string | null }> {
   const now = meta.now ?? new Date();
   const parsed = parseIngestBody(body, { now });
   if ('error' in parsed) throw AppError.badRequest('The request body is not a transaction or a batch of transactions.', parsed.error);
@@ -110,6 +110,5 @@ export async function acceptTransactions(
     results: results as IngestItemResult[],
     acceptedIds,
     batch: stored?.batch ?? null,
-    normalised: new Map(valid.map((v) => [v.t.externalId, v.t])),
   };
 }

@@ -103,6 +103,8 @@ interface Group {
   meta: { source: TransactionSource; apiKeyId: number | null };
   subs: Submission[];
   size: number;
+  /** Carries prescored rows (decisions): flushed one such group at a time, see pump(). */
+  scored: boolean;
 }
 
 /**
@@ -118,6 +120,8 @@ export class IngestBatcher {
   private running = 0;
   /** Flushes with prescored rows in progress: at most one, see pump(). */
   private scoredRunning = 0;
+  /** Names full groups that wait for a flush slot beside the group now filling under their key. */
+  private sealed = 0;
 
   constructor(
     private readonly db: Database,
@@ -136,13 +140,17 @@ export class IngestBatcher {
       const key = `${meta.source}:${meta.apiKeyId ?? ''}`;
       let g = this.waiting.get(key);
       if (!g || g.size + items.length > this.limits.maxItems) {
-        if (g) this.waiting.delete(key);
-        if (g) void this.flush(g);
-        g = { meta: { source: meta.source, apiKeyId: meta.apiKeyId }, subs: [], size: 0 };
+        // A full group waits for its slot like any other (the limits hold for it too); a new one fills.
+        if (g) {
+          this.waiting.delete(key);
+          this.waiting.set(`${key}#${++this.sealed}`, g);
+        }
+        g = { meta: { source: meta.source, apiKeyId: meta.apiKeyId }, subs: [], size: 0, scored: false };
         this.waiting.set(key, g);
       }
       g.subs.push({ items, prescored, receivedAt: meta.receivedAt, resolve, reject });
       g.size += items.length;
+      if (prescored && prescored.size > 0) g.scored = true;
       this.pump();
     });
   }
@@ -156,16 +164,15 @@ export class IngestBatcher {
   private pump(): void {
     for (const [key, g] of this.waiting) {
       if (this.running >= this.limits.concurrentFlushes) return;
-      const scored = g.subs.some((s) => s.prescored && s.prescored.size > 0);
-      if (scored && this.scoredRunning > 0) continue;
+      if (g.scored && this.scoredRunning > 0) continue;
       this.waiting.delete(key);
-      void this.flush(g, scored);
+      void this.flush(g);
     }
   }
 
-  private async flush(g: Group, scored = g.subs.some((s) => s.prescored && s.prescored.size > 0)): Promise<void> {
+  private async flush(g: Group): Promise<void> {
     this.running += 1;
-    if (scored) this.scoredRunning += 1;
+    if (g.scored) this.scoredRunning += 1;
     try {
       // One row per upstream id: a repeat in another request of the same group is that request's duplicate.
       const seen = new Set<string>();
@@ -203,7 +210,7 @@ export class IngestBatcher {
       for (const s of g.subs) s.reject(err);
     } finally {
       this.running -= 1;
-      if (scored) this.scoredRunning -= 1;
+      if (g.scored) this.scoredRunning -= 1;
       this.pump();
     }
   }

@@ -4,6 +4,7 @@ import type { Database } from '../db/database';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { sqlDateTime } from '../db/sql-date';
 import { LRUCache } from 'lru-cache';
+import { perDatabase } from '../db/per-database';
 
 export type TransactionSource = 'api' | 'decision' | 'csv' | 'seed';
 
@@ -13,19 +14,10 @@ const MAX_PASSES = 4;
 /**
  * Card ids by keyed card hash, per database, of cards known to be committed. A card row is never
  * changed or deleted once made, so a known card needs neither the upsert nor the read-back: a
- * request on a card seen before costs one round trip less than two. Filled only after a commit
+ * request on a card seen before skips both round trips. Filled only after a commit
  * (`rememberCards`), never from inside a transaction that might still roll back.
  */
-const knownCards = new WeakMap<Database, LRUCache<string, number>>();
-
-function cardCache(db: Database): LRUCache<string, number> {
-  let c = knownCards.get(db);
-  if (!c) {
-    c = new LRUCache<string, number>({ max: 200_000 });
-    knownCards.set(db, c);
-  }
-  return c;
-}
+const cardCache = perDatabase(() => new LRUCache<string, number>({ max: 200_000 }));
 
 /** Records card ids a committed store returned (see knownCards). */
 export function rememberCards(db: Database, cardIds: Map<string, number>): void {

@@ -2,6 +2,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Redis } from 'ioredis';
 import type { Database } from '../db/database';
 import { LRUCache } from 'lru-cache';
+import { perDatabase } from '../db/per-database';
 import { retryOnDeadlock } from '../db/retry-deadlock';
 import { sqlDateTime } from '../db/sql-date';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
@@ -100,14 +101,10 @@ const LOCK_PENDING = `
  * once; the locking read above then needs no join (a join would lock the card rows too, against
  * ingest's upserts of the same cards).
  */
-const cardHashes = new WeakMap<Database, LRUCache<number, string>>();
+const cardHashes = perDatabase(() => new LRUCache<number, string>({ max: 200_000 }));
 
 async function panHashesOf(db: Database, t: Transaction, cardIds: number[]): Promise<Map<number, string>> {
-  let cache = cardHashes.get(db);
-  if (!cache) {
-    cache = new LRUCache<number, string>({ max: 200_000 });
-    cardHashes.set(db, cache);
-  }
+  const cache = cardHashes(db);
   const out = new Map<number, string>();
   const missing: number[] = [];
   for (const id of new Set(cardIds)) {
