@@ -129,6 +129,8 @@ export class IngestBatcher {
     private readonly publish?: StoreOptions['publish'],
     /** Transactions stored together at most; flushes in progress at once at most. */
     private readonly limits = { maxItems: 1000, concurrentFlushes: 2 },
+    /** How a group is stored (the unit tests watch the grouping through it). */
+    private readonly store: typeof storeAndQueue = storeAndQueue,
   ) {}
 
   submit(
@@ -189,7 +191,7 @@ export class IngestBatcher {
       }
       // Received when the first of them arrived: the ingest-to-scored latency includes the wait here.
       const receivedAt = new Date(Math.min(...g.subs.map((s) => s.receivedAt.getTime())));
-      const stored = await storeAndQueue(this.db, this.scoring, union, { ...g.meta, receivedAt }, { prescored, publish: this.publish });
+      const stored = await this.store(this.db, this.scoring, union, { ...g.meta, receivedAt }, { prescored, publish: this.publish });
       const claimed = new Set<string>();
       for (const s of g.subs) {
         const inserted = new Map<string, number>();
