@@ -266,7 +266,7 @@ async function main(): Promise<number> {
     ...(needServices || selected.has('reliability') ? ['mariadb-server', 'redis-server'] : []),
     ...(wantE2e ? ['chromium'] : []),
     // Reference libraries the model and ingest-contract tests check against.
-    ...(vitestProjects.length > 0 ? ['python3-sklearn', 'python3-babel', 'iso-codes'] : []),
+    ...(vitestProjects.length > 0 ? ['python3-sklearn', 'python3-pandas', 'python3-babel', 'iso-codes'] : []),
   ];
 
   const signal = onStopSignals(() => undefined, log);
