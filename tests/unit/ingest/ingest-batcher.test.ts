@@ -36,12 +36,14 @@ function harness(limits = { maxItems: 1000, concurrentFlushes: 2 }) {
       inFlight += 1;
       maxInFlight = Math.max(maxInFlight, inFlight);
       const done = () => (inFlight -= 1);
+      // Named when the store is called, so two stores never share a name.
+      const batch = `b${calls.length + 1}`;
       calls.push({
         ids: items.map((t) => t.externalId),
         prescored: opts?.prescored?.size ?? 0,
         finish: () => {
           done();
-          resolve({ batch: `b${calls.length}`, inserted: new Map(items.map((t) => [t.externalId, nextId++])), existing: new Map(), queued: true });
+          resolve({ batch, inserted: new Map(items.map((t) => [t.externalId, nextId++])), existing: new Map(), queued: true });
         },
         fail: (e) => {
           done();
