@@ -12,6 +12,7 @@ import { openDatabase, type Database } from './db/database';
 import { createRedis } from './lib/redis';
 import { logger, scrubDigits } from './lib/logger';
 import { maskCardNumbersInBody } from './lib/mask-card-numbers';
+import { logUpstreamRefusals } from './lib/upstream-log';
 import { errorHandler, notFoundHandler } from './lib/error-handler';
 import { mountRoutes, type RouteSpec } from './access/route-table';
 import { createSession } from './auth/session';
@@ -70,7 +71,7 @@ export interface EdgecaseServer {
 export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {}): EdgecaseServer {
   const config = loadConfig({ ...process.env, ...overrides });
   const db = openDatabase(config);
-  const redis = createRedis(config, { name: 'web' });
+  const redis = createRedis(config, { name: 'web', autoPipelining: true });
   redis.on('error', (err) => logger().warn({ err: err.message }, 'redis connection problem'));
 
   const app = express();
@@ -93,8 +94,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       crossOriginEmbedderPolicy: false,
     }),
   );
-  app.use(
-    pinoHttp({
+  const accessLog = pinoHttp({
       logger: logger(),
       autoLogging: { ignore: (req) => req.url === '/api/health' },
       customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'info' : 'debug'),
@@ -103,8 +103,10 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
         req: (req: { method: string; url: string }) => ({ method: req.method, url: scrubDigits(req.url.split('?')[0]) }),
         res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
       },
-    }),
-  );
+  });
+  // Upstream systems call /api/v1 thousands of times a second: a per-request child logger there costs
+  // more CPU than the scoring. Their successes would be debug lines nobody reads; refusals are logged.
+  app.use((req, res, next) => (req.url.startsWith('/api/v1/') ? logUpstreamRefusals(req, res, next) : accessLog(req, res, next)));
 
   const { middleware: sessionMiddleware, store } = createSession(config, db);
   const pp = configurePassport(db);

@@ -4,9 +4,11 @@ import type { Config } from '../config/index';
 /**
  * A Redis connection for this process. `forBullmq` connections must not cap
  * per-request retries (BullMQ's blocking commands rely on it); `failFast`
- * turns off the offline queue, for producers on a request path.
+ * turns off the offline queue, for producers on a request path. `autoPipelining`
+ * sends the commands issued in one tick of the event loop as one write (the
+ * velocity scripts and event publishes of concurrent requests).
  */
-export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: string; failFast?: boolean } = {}): Redis {
+export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: string; failFast?: boolean; autoPipelining?: boolean } = {}): Redis {
   const options: RedisOptions = {
     host: c.REDIS_HOST,
     port: c.REDIS_PORT,
@@ -20,6 +22,7 @@ export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: strin
     // restart costs the time Redis needs to load, not the estimate.
     maxLoadingRetryTime: 500,
     lazyConnect: false,
+    enableAutoPipelining: opts.autoPipelining ?? false,
   };
   return new Redis(options);
 }
