@@ -3,6 +3,7 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import type { Database } from '../db/database';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { sqlDateTime } from '../db/sql-date';
+import { bindRows } from '../db/bind-rows';
 import { LRUCache } from 'lru-cache';
 import { perDatabase } from '../db/per-database';
 
@@ -85,10 +86,10 @@ export async function storeTransactions(
     // The reads are locking reads: they see the newest committed rows, not this transaction's snapshot.
     for (let pass = 0, todo = cardRows; todo.length > 0; pass += 1, todo = todo.filter((c) => !cardId.has(c.panHash))) {
       if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} card rows still missing after ${MAX_PASSES} inserts`);
+      const values = bindRows(todo.map((c) => [c.panHash, c.bin, c.last4, c.cardholderId, 'active', receivedAt, receivedAt]));
       await db.sequelize.query(
-        `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${todo.map(() => "(?, ?, ?, ?, 'active', ?, ?)").join(', ')}
-         ON DUPLICATE KEY UPDATE id = id`,
-        { replacements: todo.flatMap((c) => [c.panHash, c.bin, c.last4, c.cardholderId, receivedAt, receivedAt]), type: QueryTypes.INSERT, transaction: t },
+        `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${values.sql} ON DUPLICATE KEY UPDATE id = id`,
+        { bind: values.bind, type: QueryTypes.INSERT, transaction: t },
       );
       const ids = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE pan_hash IN (:h) LOCK IN SHARE MODE', {
         replacements: { h: todo.map((c) => c.panHash) },
@@ -106,36 +107,34 @@ export async function storeTransactions(
     for (let pass = 0, todo = items; todo.length > 0; pass += 1, todo = todo.filter((x) => !found.has(x.externalId))) {
       if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} transactions still missing after ${MAX_PASSES} inserts`);
       for (let i = 0; i < todo.length; i += 500) {
-        const chunk = todo.slice(i, i + 500);
+        const values = bindRows(
+          todo.slice(i, i + 500).map((x) => [
+            x.externalId,
+            meta.source,
+            batch,
+            meta.apiKeyId,
+            cardId.get(x.card.panHash),
+            sqlDateTime(x.occurredAt),
+            receivedAt,
+            x.amountMinor,
+            x.currency,
+            x.currencyExponent,
+            x.merchant.id,
+            x.merchant.name,
+            x.merchant.mcc,
+            x.merchant.country,
+            x.cardPresent,
+            x.channel,
+            x.deviceId ?? null,
+            x.ip ?? null,
+            x.lat ?? null,
+            x.lon ?? null,
+            meta.scored?.has(x.externalId) ? 'scored' : 'accepted',
+          ]),
+        );
         const returned = await db.sequelize.query<{ id: number; external_id: string }>(
-          `INSERT IGNORE INTO transactions ${cols} VALUES ${chunk.map(() => '(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)').join(', ')} RETURNING id, external_id`,
-          {
-            replacements: chunk.flatMap((x) => [
-              x.externalId,
-              meta.source,
-              batch,
-              meta.apiKeyId,
-              cardId.get(x.card.panHash),
-              sqlDateTime(x.occurredAt),
-              receivedAt,
-              x.amountMinor,
-              x.currency,
-              x.currencyExponent,
-              x.merchant.id,
-              x.merchant.name,
-              x.merchant.mcc,
-              x.merchant.country,
-              x.cardPresent,
-              x.channel,
-              x.deviceId ?? null,
-              x.ip ?? null,
-              x.lat ?? null,
-              x.lon ?? null,
-              meta.scored?.has(x.externalId) ? 'scored' : 'accepted',
-            ]),
-            type: QueryTypes.SELECT,
-            transaction: t,
-          },
+          `INSERT IGNORE INTO transactions ${cols} VALUES ${values.sql} RETURNING id, external_id`,
+          { bind: values.bind, type: QueryTypes.SELECT, transaction: t },
         );
         for (const r of returned) {
           found.add(r.external_id);

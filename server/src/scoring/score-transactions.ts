@@ -4,7 +4,7 @@ import type { Database } from '../db/database';
 import { LRUCache } from 'lru-cache';
 import { perDatabase } from '../db/per-database';
 import { retryOnDeadlock } from '../db/retry-deadlock';
-import { sqlDateTime } from '../db/sql-date';
+import { bindRows } from '../db/bind-rows';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { topContributions, type Row } from '@shared/model/index';
@@ -386,9 +386,7 @@ async function raiseAlert(db: Database, t: Transaction, { o, r, settings }: Scor
 /** Multi-row INSERT in chunks (one round trip per 500 rows). */
 async function bulkInsert(db: Database, t: Transaction, head: string, rows: unknown[][]): Promise<void> {
   for (let i = 0; i < rows.length; i += 500) {
-    const chunk = rows.slice(i, i + 500);
-    const placeholders = chunk.map((r) => `(${r.map(() => '?').join(', ')})`).join(', ');
-    const values = chunk.flat().map((v) => (v instanceof Date ? sqlDateTime(v) : v));
-    await db.sequelize.query(`${head} ${placeholders}`, { replacements: values, type: QueryTypes.INSERT, transaction: t });
+    const { sql, bind } = bindRows(rows.slice(i, i + 500));
+    await db.sequelize.query(`${head} ${sql}`, { bind, type: QueryTypes.INSERT, transaction: t });
   }
 }
