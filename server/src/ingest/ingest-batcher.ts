@@ -117,8 +117,9 @@ interface Group {
  */
 export class IngestBatcher {
   private readonly waiting = new Map<string, Group>();
-  private running = 0;
-  /** Flushes with prescored rows in progress: at most one, see pump(). */
+  /** Flushes of ordinary groups in progress: at most `concurrentFlushes`. */
+  private plainRunning = 0;
+  /** Flushes with prescored rows in progress: at most one, in a slot of their own, see pump(). */
   private scoredRunning = 0;
   /** Names full groups that wait for a flush slot beside the group now filling under their key. */
   private sealed = 0;
@@ -127,8 +128,12 @@ export class IngestBatcher {
     private readonly db: Database,
     private readonly scoring: ScoringQueue,
     private readonly publish?: StoreOptions['publish'],
-    /** Transactions stored together at most; flushes in progress at once at most. */
-    private readonly limits = { maxItems: 1000, concurrentFlushes: 2 },
+    /**
+     * Transactions stored together at most; flushes of ordinary groups in progress at once at most.
+     * One: a second slot halves the groups, and each group is a scoring job, whose fixed cost in
+     * the workers (queue scripts, one database transaction) then weighs on every transaction.
+     */
+    private readonly limits = { maxItems: 1000, concurrentFlushes: 1 },
     /** How a group is stored (the unit tests watch the grouping through it). */
     private readonly store: typeof storeAndQueue = storeAndQueue,
   ) {}
@@ -158,23 +163,23 @@ export class IngestBatcher {
   }
 
   /**
-   * Starts waiting groups while flush slots are free. Groups with prescored rows (decisions) go one
-   * at a time: two of them at once write alerts and cases side by side and deadlock on those rows,
-   * and each retry's pause lands on the decision's latency; one at a time, the next group simply
-   * grows while the current one commits.
+   * Starts waiting groups whose slot is free. Groups with prescored rows (decisions) go one at a
+   * time: two of them at once write alerts and cases side by side and deadlock on those rows, and
+   * each retry's pause lands on the decision's latency; one at a time, the next group simply grows
+   * while the current one commits. Their slot is their own, so a decision never waits behind an
+   * ordinary ingest flush.
    */
   private pump(): void {
     for (const [key, g] of this.waiting) {
-      if (this.running >= this.limits.concurrentFlushes) return;
-      if (g.scored && this.scoredRunning > 0) continue;
+      if (g.scored ? this.scoredRunning > 0 : this.plainRunning >= this.limits.concurrentFlushes) continue;
       this.waiting.delete(key);
       void this.flush(g);
     }
   }
 
   private async flush(g: Group): Promise<void> {
-    this.running += 1;
     if (g.scored) this.scoredRunning += 1;
+    else this.plainRunning += 1;
     try {
       // One row per upstream id: a repeat in another request of the same group is that request's duplicate.
       const seen = new Set<string>();
@@ -211,8 +216,8 @@ export class IngestBatcher {
     } catch (err) {
       for (const s of g.subs) s.reject(err);
     } finally {
-      this.running -= 1;
       if (g.scored) this.scoredRunning -= 1;
+      else this.plainRunning -= 1;
       this.pump();
     }
   }

@@ -6,7 +6,8 @@
  *     answered with its own items only;
  *   - a group holds at most `maxItems` transactions, and no more than `concurrentFlushes` groups
  *     are stored at once, a full group included;
- *   - groups carrying prescored rows (decisions) are stored one at a time;
+ *   - groups carrying prescored rows (decisions) are stored one at a time, in a slot of their own
+ *     (an ordinary flush in progress does not hold a decision back);
  *   - an upstream id repeated by two requests of one group is stored once: the first request gets it
  *     as inserted, the second as existing (its duplicate);
  *   - a failed store rejects every request of its group and the next group still runs.
@@ -100,22 +101,26 @@ describe('IngestBatcher grouping', () => {
     expect(h.maxInFlight()).toBe(1);
   });
 
-  it('stores groups of decisions one at a time while ordinary groups use the free slot', async () => {
-    const h = harness({ maxItems: 1000, concurrentFlushes: 2 });
+  it('stores groups of decisions one at a time, in a slot of their own beside the ordinary groups', async () => {
+    const h = harness({ maxItems: 1000, concurrentFlushes: 1 });
+    const a = h.batcher.submit([tx('a')], meta());
     const d1 = h.batcher.submit([tx('d1')], meta('decision'), prescored('d1'));
     const d2 = h.batcher.submit([tx('d2')], meta('decision'), prescored('d2'));
-    const a = h.batcher.submit([tx('a')], meta());
-    // d1 runs; d2 waits for it although a slot is free; the ordinary request takes that slot.
-    expect(h.calls.map((c) => c.ids)).toEqual([['d1'], ['a']]);
-    h.calls[1].finish();
-    await tick();
-    expect(h.calls).toHaveLength(2);
+    const b = h.batcher.submit([tx('b')], meta());
+    // The ordinary slot is taken by a; d1 does not wait behind it; d2 waits for d1, b for a.
+    expect(h.calls.map((c) => c.ids)).toEqual([['a'], ['d1']]);
     h.calls[0].finish();
     await tick();
-    expect(h.calls.map((c) => c.ids)).toEqual([['d1'], ['a'], ['d2']]);
-    expect(h.calls[2].prescored).toBe(1);
+    expect(h.calls.map((c) => c.ids)).toEqual([['a'], ['d1'], ['b']]);
     h.calls[2].finish();
-    await Promise.all([d1, d2, a]);
+    await tick();
+    expect(h.calls).toHaveLength(3);
+    h.calls[1].finish();
+    await tick();
+    expect(h.calls.map((c) => c.ids)).toEqual([['a'], ['d1'], ['b'], ['d2']]);
+    expect(h.calls[3].prescored).toBe(1);
+    h.calls[3].finish();
+    await Promise.all([a, d1, d2, b]);
   });
 
   it('stores an id repeated by two requests of one group once: the second request gets it as its duplicate', async () => {
