@@ -76,6 +76,9 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
 
   const app = express();
   app.disable('x-powered-by');
+  // API answers are no-store, so no client ever revalidates one; an ETag would only hash every body.
+  // (Static files are served with their own validators.)
+  app.set('etag', false);
   app.set('trust proxy', config.TRUST_PROXY);
   app.use(
     helmet({
