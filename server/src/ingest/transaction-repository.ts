@@ -4,6 +4,7 @@ import type { Database } from '../db/database';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { sqlDateTime } from '../db/sql-date';
 import { bindRows } from '../db/bind-rows';
+import { rawQuery } from '../db/raw-query';
 import { LRUCache } from 'lru-cache';
 import { perDatabase } from '../db/per-database';
 
@@ -87,15 +88,14 @@ export async function storeTransactions(
     for (let pass = 0, todo = cardRows; todo.length > 0; pass += 1, todo = todo.filter((c) => !cardId.has(c.panHash))) {
       if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} card rows still missing after ${MAX_PASSES} inserts`);
       const values = bindRows(todo.map((c) => [c.panHash, c.bin, c.last4, c.cardholderId, 'active', receivedAt, receivedAt]));
-      await db.sequelize.query(
+      await rawQuery(
+        t,
         `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${values.sql} ON DUPLICATE KEY UPDATE id = id`,
-        { bind: values.bind, type: QueryTypes.INSERT, transaction: t },
+        values.values,
       );
-      const ids = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE pan_hash IN (:h) LOCK IN SHARE MODE', {
-        replacements: { h: todo.map((c) => c.panHash) },
-        type: QueryTypes.SELECT,
-        transaction: t,
-      });
+      const ids = await rawQuery<{ id: number; pan_hash: string }[]>(t, 'SELECT id, pan_hash FROM cards WHERE pan_hash IN (?) LOCK IN SHARE MODE', [
+        todo.map((c) => c.panHash),
+      ]);
       for (const r of ids) cardId.set(r.pan_hash, Number(r.id));
     }
     const cols =
@@ -132,9 +132,10 @@ export async function storeTransactions(
             meta.scored?.has(x.externalId) ? 'scored' : 'accepted',
           ]),
         );
-        const returned = await db.sequelize.query<{ id: number; external_id: string }>(
+        const returned = await rawQuery<{ id: number; external_id: string }[]>(
+          t,
           `INSERT IGNORE INTO transactions ${cols} VALUES ${values.sql} RETURNING id, external_id`,
-          { bind: values.bind, type: QueryTypes.SELECT, transaction: t },
+          values.values,
         );
         for (const r of returned) {
           found.add(r.external_id);
@@ -143,9 +144,10 @@ export async function storeTransactions(
       }
       const rest = todo.filter((x) => !found.has(x.externalId));
       if (rest.length === 0) break;
-      const got = await db.sequelize.query<{ id: number; external_id: string; ingest_batch: string }>(
-        'SELECT id, external_id, ingest_batch FROM transactions WHERE external_id IN (:ids) LOCK IN SHARE MODE',
-        { replacements: { ids: rest.map((x) => x.externalId) }, type: QueryTypes.SELECT, transaction: t },
+      const got = await rawQuery<{ id: number; external_id: string; ingest_batch: string }[]>(
+        t,
+        'SELECT id, external_id, ingest_batch FROM transactions WHERE external_id IN (?) LOCK IN SHARE MODE',
+        [rest.map((x) => x.externalId)],
       );
       for (const r of got) {
         found.add(r.external_id);

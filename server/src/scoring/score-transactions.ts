@@ -5,6 +5,7 @@ import { LRUCache } from 'lru-cache';
 import { perDatabase } from '../db/per-database';
 import { retryOnDeadlock } from '../db/retry-deadlock';
 import { bindRows } from '../db/bind-rows';
+import { rawQuery } from '../db/raw-query';
 import { featureRow, type VelocitySnapshot } from '@shared/features/definitions';
 import type { NormalisedTransaction } from '@shared/api/transactions';
 import { topContributions, type Row } from '@shared/model/index';
@@ -93,7 +94,7 @@ const LOCK_PENDING = `
   SELECT id, external_id, card_id, occurred_at, received_at, amount_minor, currency, currency_exponent,
          merchant_ref, mcc, merchant_country, card_present, channel, device_id, lat, lon
   FROM transactions
-  WHERE id IN (:ids) AND status = 'accepted'
+  WHERE id IN (?) AND status = 'accepted'
   FOR UPDATE`;
 
 /**
@@ -113,11 +114,7 @@ async function panHashesOf(db: Database, t: Transaction, cardIds: number[]): Pro
     else out.set(id, hash);
   }
   if (missing.length > 0) {
-    const rows = await db.sequelize.query<{ id: number; pan_hash: string }>('SELECT id, pan_hash FROM cards WHERE id IN (:ids)', {
-      replacements: { ids: missing },
-      type: QueryTypes.SELECT,
-      transaction: t,
-    });
+    const rows = await rawQuery<{ id: number; pan_hash: string }[]>(t, 'SELECT id, pan_hash FROM cards WHERE id IN (?)', [missing]);
     for (const r of rows) {
       out.set(Number(r.id), r.pan_hash);
       cache.set(Number(r.id), r.pan_hash);
@@ -147,7 +144,7 @@ export async function scoreTransactions(ctx: ScoringContext, ids: number[]): Pro
       db.sequelize.transaction(async (t) => {
         outcomes = [];
         events = [];
-        const locked = await db.sequelize.query<Omit<PendingRow, 'pan_hash'>>(LOCK_PENDING, { replacements: { ids }, type: QueryTypes.SELECT, transaction: t });
+        const locked = await rawQuery<Omit<PendingRow, 'pan_hash'>[]>(t, LOCK_PENDING, [ids]);
         if (locked.length === 0) return;
         const hashes = await panHashesOf(db, t, locked.map((r) => Number(r.card_id)));
         const candidates: PendingRow[] = locked
@@ -200,13 +197,11 @@ export async function commitScores(db: Database, t: Transaction, todo: ScoredRow
   if (todo.length === 0) return events;
   const now = new Date();
   await bulkInsert(
-    db,
     t,
     'INSERT IGNORE INTO transaction_features (transaction_id, features, computed_at) VALUES',
     todo.map(({ o }) => [o.transactionId, JSON.stringify(o.features), now]),
   );
   await bulkInsert(
-    db,
     t,
     'INSERT IGNORE INTO transaction_scores (transaction_id, model_version_id, margin, normalized_margin, probability, reasons, alerted, threshold, scored_at, latency_ms) VALUES',
     todo.map(({ o, r }) => [
@@ -225,18 +220,13 @@ export async function commitScores(db: Database, t: Transaction, todo: ScoredRow
   const shadowed = todo.filter(({ o }) => o.shadow);
   if (shadowed.length > 0) {
     await bulkInsert(
-      db,
       t,
       'INSERT IGNORE INTO shadow_scores (transaction_id, model_version_id, margin, probability, would_alert, scored_at) VALUES',
       shadowed.map(({ o }) => [o.transactionId, o.shadow!.modelVersionId, o.shadow!.margin, o.shadow!.probability, o.shadow!.wouldAlert, now]),
     );
   }
   if (opts.markScored) {
-    await db.sequelize.query("UPDATE transactions SET status = 'scored' WHERE id IN (:ids)", {
-      replacements: { ids: todo.map(({ o }) => o.transactionId) },
-      type: QueryTypes.UPDATE,
-      transaction: t,
-    });
+    await rawQuery(t, "UPDATE transactions SET status = 'scored' WHERE id IN (?)", [todo.map(({ o }) => o.transactionId)]);
   }
   for (const row of todo) {
     if (row.o.alerted) events.push(await raiseAlert(db, t, row));
@@ -384,9 +374,9 @@ async function raiseAlert(db: Database, t: Transaction, { o, r, settings }: Scor
 }
 
 /** Multi-row INSERT in chunks (one round trip per 500 rows). */
-async function bulkInsert(db: Database, t: Transaction, head: string, rows: unknown[][]): Promise<void> {
+async function bulkInsert(t: Transaction, head: string, rows: unknown[][]): Promise<void> {
   for (let i = 0; i < rows.length; i += 500) {
-    const { sql, bind } = bindRows(rows.slice(i, i + 500));
-    await db.sequelize.query(`${head} ${sql}`, { bind, type: QueryTypes.INSERT, transaction: t });
+    const { sql, values } = bindRows(rows.slice(i, i + 500));
+    await rawQuery(t, `${head} ${sql}`, values);
   }
 }
