@@ -71,7 +71,7 @@ export interface EdgecaseServer {
 export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {}): EdgecaseServer {
   const config = loadConfig({ ...process.env, ...overrides });
   const db = openDatabase(config);
-  const redis = createRedis(config, { name: 'web', autoPipelining: true });
+  const redis = createRedis(config, { name: 'web' });
   redis.on('error', (err) => logger().warn({ err: err.message }, 'redis connection problem'));
 
   const app = express();

@@ -4,11 +4,9 @@ import type { Config } from '../config/index';
 /**
  * A Redis connection for this process. `forBullmq` connections must not cap
  * per-request retries (BullMQ's blocking commands rely on it); `failFast`
- * turns off the offline queue, for producers on a request path. `autoPipelining`
- * sends the commands issued in one tick of the event loop as one write (the
- * velocity scripts and event publishes of concurrent requests).
+ * turns off the offline queue, for producers on a request path.
  */
-export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: string; failFast?: boolean; autoPipelining?: boolean } = {}): Redis {
+export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: string; failFast?: boolean } = {}): Redis {
   const options: RedisOptions = {
     host: c.REDIS_HOST,
     port: c.REDIS_PORT,
@@ -22,7 +20,6 @@ export function createRedis(c: Config, opts: { forBullmq?: boolean; name?: strin
     // restart costs the time Redis needs to load, not the estimate.
     maxLoadingRetryTime: 500,
     lazyConnect: false,
-    enableAutoPipelining: opts.autoPipelining ?? false,
   };
   return new Redis(options);
 }
