@@ -137,7 +137,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   const training = new TrainingQueue(config);
   const drift = new DriftQueue(config);
   const velocity = new VelocityStore(redis, config.REDIS_PREFIX);
-  const models = new ActiveModels(db);
+  const models = new ActiveModels(db).start();
   const subscriber = createRedis(config, { name: 'web-events', forBullmq: true });
   subscriber.on('error', () => undefined);
   const ready = subscribeEvents(subscriber, config.REDIS_PREFIX, (e) => {
@@ -233,6 +233,7 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
       if (closed) return;
       closed = true;
       store.stopExpiringSessions();
+      models.close();
       await ready;
       subscriber.disconnect();
       await scoring.close().catch(() => undefined);

@@ -22,7 +22,7 @@ export async function createScoringWorker(c: Config, db: Database, concurrency =
   const redis: Redis = createRedis(c, { name: 'scoring-velocity' });
   const subscriber: Redis = createRedis(c, { name: 'scoring-events', forBullmq: true });
   const velocity = new VelocityStore(redis, c.REDIS_PREFIX);
-  const active = new ActiveModels(db);
+  const active = new ActiveModels(db).start();
   await subscribeEvents(subscriber, c.REDIS_PREFIX, (e) => {
     if (e.type === 'model.changed' || e.type === 'settings.changed') active.invalidate();
   });
@@ -50,6 +50,7 @@ export async function createScoringWorker(c: Config, db: Database, concurrency =
     worker,
     async close() {
       await worker.close();
+      active.close();
       subscriber.disconnect();
       redis.disconnect();
     },
