@@ -55,7 +55,7 @@ export class ActiveModels {
     // No champion yet (first start, before the first training run): look again on every use
     // (callers that arrive while a load runs share it).
     if (!this.champion && !this.running) this.required = ++this.asked;
-    if (this.done < this.required || !this.settings) await this.kick();
+    if (this.done < this.required) await this.kick();
     return { champion: this.champion, challenger: this.challenger, settings: this.settings! };
   }
 
@@ -68,7 +68,7 @@ export class ActiveModels {
   private kick(): Promise<void> {
     this.running ??= (async () => {
       try {
-        while (this.done < this.asked || !this.settings) {
+        while (this.done < this.asked) {
           const generation = this.asked;
           await this.load();
           this.done = generation;
