@@ -17,7 +17,8 @@
  *   decisions an evenly paced load of POST /api/v1/decisions at `--decision-rate`/s: latency per request;
  * and from the database: every accepted id scored exactly once, at most one alert per transaction.
  * Each phase also prints the CPU seconds each process used (from /proc) and what the rest of the
- * machine took meanwhile, so a figure measured beside someone else's load can be told apart.
+ * machine took meanwhile, and the time the host stole from this virtual machine's cores, so a figure
+ * measured beside someone else's load (on this machine or on the host) can be told apart.
  * `--profile` writes CPU profiles of the web server and workers to .data/bench-profiles; statements
  * slower than 50 ms are in .data/bench/logs/mariadb-slow.log.
  * autocannon's own rate limit sends each second's requests in one burst, so the two paced phases use
@@ -75,7 +76,8 @@ function cpuMeter(stack: Stack) {
   ];
   const machine = () => {
     const [, ...t] = readFileSync('/proc/stat', 'utf8').split('\n')[0].trim().split(/\s+/).map(Number);
-    return { busy: (t[0] + t[1] + t[2] + t[5] + t[6]) / 100, all: t.slice(0, 8).reduce((a, b) => a + b, 0) / 100 };
+    // user nice system irq softirq; steal (t[7]) is time the host gave this virtual machine's cores to someone else.
+    return { busy: (t[0] + t[1] + t[2] + t[5] + t[6]) / 100, steal: t[7] / 100, all: t.slice(0, 8).reduce((a, b) => a + b, 0) / 100 };
   };
   const before = new Map(procs().map(([n, pid]) => [n, cpuSeconds(pid)]));
   const m0 = machine();
@@ -86,7 +88,7 @@ function cpuMeter(stack: Stack) {
     const parts = procs().map(([n, pid]) => `${n} ${(cpuSeconds(pid) - (before.get(n) ?? 0)).toFixed(1)}`);
     const ours = procs().reduce((sum, [n, pid]) => sum + (cpuSeconds(pid) - (before.get(n) ?? 0)), 0);
     const busy = m1.busy - m0.busy;
-    return `CPU s over ${wall.toFixed(1)} s: ${parts.join(', ')}; machine busy ${busy.toFixed(1)} of ${(m1.all - m0.all).toFixed(1)} (others ${(busy - ours).toFixed(1)})`;
+    return `CPU s over ${wall.toFixed(1)} s: ${parts.join(', ')}; machine busy ${busy.toFixed(1)} of ${(m1.all - m0.all).toFixed(1)} (others ${(busy - ours).toFixed(1)}, stolen by the host ${(m1.steal - m0.steal).toFixed(1)})`;
   };
 }
 
