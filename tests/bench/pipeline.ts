@@ -1,7 +1,8 @@
 /**
  * Transaction pipeline benchmark: `npm run bench -- pipeline [--seconds 20] [--quick] [--runs 1]
  *   [--connections 4] [--batch 500] [--single-connections 16] [--alert-rate 1000] [--alert-batch 10]
- *   [--decision-rate 500] [--workers 2] [--durable-db] [--profile]`.
+ *   [--decision-rate 500] [--workers 2] [--durable-db] [--profile]
+ *   [--only batch,single,alerts,decisions]`.
  *
  * Starts a private stack on bench ports (MariaDB 3947, Redis 6947 with its append-only file, web
  * 4947; data folder .data/bench, wiped), migrates, seeds the demo staff and API key and a small
@@ -104,9 +105,14 @@ interface Flags {
   workers: number;
   durableDb: boolean;
   profile: boolean;
+  /** The phases to run (`--only decisions`, `--only batch,single`): all by default. */
+  phases: Set<Phase>;
   cardholders: number;
   days: number;
 }
+
+const PHASES = ['batch', 'single', 'alerts', 'decisions'] as const;
+type Phase = (typeof PHASES)[number];
 
 function flags(argv: string[]): Flags {
   const { values } = parseArgs({
@@ -124,6 +130,7 @@ function flags(argv: string[]): Flags {
       workers: { type: 'string', default: '2' },
       'durable-db': { type: 'boolean', default: false },
       profile: { type: 'boolean', default: false },
+      only: { type: 'string' },
     },
   });
   const quick = values.quick ?? false;
@@ -139,6 +146,7 @@ function flags(argv: string[]): Flags {
     workers: Number(values.workers),
     durableDb: values['durable-db'] ?? false,
     profile: values.profile ?? false,
+    phases: new Set((values.only ?? PHASES.join(',')).split(',').map((x) => x.trim()).filter((x) => PHASES.includes(x as Phase)) as Phase[]),
     // Chargebacks arrive 3 to 45 days late: the history has to reach back far enough for labelled fraud.
     // (--quick shortens the phases only: a smaller history leaves too few labelled fraud to calibrate on.)
     cardholders: 500,
@@ -179,6 +187,27 @@ class Traffic {
     }
     return out;
   }
+}
+
+/**
+ * Statements and commits MariaDB ran over a phase (its global status counters; the bench's own
+ * queries between the two readings are a handful), to tell how well the group commit groups.
+ */
+async function dbMeter(stack: Stack): Promise<(per: number, unit: string) => Promise<string>> {
+  const read = async () => {
+    const rows = await stack.db.sequelize.query<{ Variable_name: string; Value: string }>(
+      "SHOW GLOBAL STATUS WHERE Variable_name IN ('Questions', 'Com_commit')",
+      { type: QueryTypes.SELECT },
+    );
+    return new Map(rows.map((r) => [r.Variable_name, Number(r.Value)]));
+  };
+  const a = await read();
+  return async (per, unit) => {
+    const b = await read();
+    const q = b.get('Questions')! - a.get('Questions')!;
+    const c = b.get('Com_commit')! - a.get('Com_commit')!;
+    return `MariaDB ran ${q} statements and ${c} commits: ${(q / per).toFixed(2)} statements and ${(c / per).toFixed(2)} commits per ${unit}`;
+  };
 }
 
 const ALERT_SHARE = 0.03;
@@ -262,117 +291,177 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   const say = (l: string) => console.log(`[bench run ${run}] ${l}`);
   const checks: { tag: string; log: ResponseLog }[] = [];
 
-  // ── batch ───────────────────────────────────────────────────────────────
-  const batchTag = `bpb${run}`;
-  const batchRequests = Math.ceil((f.seconds * 12_000) / f.batch);
-  say(`preparing ${batchRequests} batches of ${f.batch}`);
-  const batchItems = Array.from({ length: batchRequests }, () => traffic.take(batchTag, f.batch));
-  const batchBodies = batchItems.map((items) => JSON.stringify({ transactions: items }));
-  const batchLog = new ResponseLog();
-  checks.push({ tag: batchTag, log: batchLog });
-  const batchStartedAt = Date.now();
+  let acceptedPerS = Number.NaN;
+  let scoredPerS = Number.NaN;
+  let drain: number | null | undefined;
+  let singlePerS = Number.NaN;
+  let singleP99 = Number.NaN;
+  let scoredLatencies: number[] = [];
+  let alertLatencies: number[] = [];
+  let alertRateAchieved = Number.NaN;
   let meter = cpuMeter(stack);
-  const batch = await autocannonBodies(stack, batchBodies, { connections: f.connections, seconds: f.seconds, log: batchLog, idsOf: batchItems.map((b) => b.map((t) => t.id)) });
-  const accepted = batchLog.accepted().length;
-  const acceptedPerS = accepted / batch.duration;
-  say(`batch: ${accepted} accepted in ${batch.duration.toFixed(1)} s (${acceptedPerS.toFixed(0)}/s), answers ${JSON.stringify(batch.statusCodeStats)}, errors ${batch.errors}`);
-  const drain = await waitUntilScored(stack.db, batchTag, accepted, 300_000);
-  say(`batch: ${meter()}`);
-  const [sc] = await stack.db.sequelize.query<{ n: number; last: Date }>(
-    'SELECT COUNT(*) AS n, MAX(s.scored_at) AS last FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
-    { replacements: { p: `${batchTag}%` }, type: QueryTypes.SELECT },
-  );
-  const scoredWindow = (new Date(sc.last).getTime() - batchStartedAt) / 1000;
-  const scoredPerS = Number(sc.n) / scoredWindow;
-  say(`batch: ${sc.n} scored by ${scoredWindow.toFixed(1)} s after the start (${scoredPerS.toFixed(0)}/s); queue drained ${drain?.toFixed(1) ?? 'not'} s after the load`);
 
-  // A share of what follows alerts: the threshold goes to the score that the top `ALERT_SHARE` of
-  // the batch phase reached (the demo model trained on a small history alerts on very little).
-  const threshold = await alertOnTopShare(stack, batchTag, ALERT_SHARE);
-  say(`alert threshold set to ${threshold.toFixed(4)} (top ${(ALERT_SHARE * 100).toFixed(0)}% of the batch phase's scores)`);
+  // ── batch ───────────────────────────────────────────────────────────────
+  if (f.phases.has('batch')) {
+    const batchTag = `bpb${run}`;
+    const batchRequests = Math.ceil((f.seconds * 12_000) / f.batch);
+    say(`preparing ${batchRequests} batches of ${f.batch}`);
+    const batchItems = Array.from({ length: batchRequests }, () => traffic.take(batchTag, f.batch));
+    const batchBodies = batchItems.map((items) => JSON.stringify({ transactions: items }));
+    const batchLog = new ResponseLog();
+    checks.push({ tag: batchTag, log: batchLog });
+    const batchStartedAt = Date.now();
+    meter = cpuMeter(stack);
+    const batch = await autocannonBodies(stack, batchBodies, { connections: f.connections, seconds: f.seconds, log: batchLog, idsOf: batchItems.map((b) => b.map((t) => t.id)) });
+    const accepted = batchLog.accepted().length;
+    acceptedPerS = accepted / batch.duration;
+    say(`batch: ${accepted} accepted in ${batch.duration.toFixed(1)} s (${acceptedPerS.toFixed(0)}/s), answers ${JSON.stringify(batch.statusCodeStats)}, errors ${batch.errors}`);
+    drain = await waitUntilScored(stack.db, batchTag, accepted, 300_000);
+    say(`batch: ${meter()}`);
+    const [sc] = await stack.db.sequelize.query<{ n: number; last: Date }>(
+      'SELECT COUNT(*) AS n, MAX(s.scored_at) AS last FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
+      { replacements: { p: `${batchTag}%` }, type: QueryTypes.SELECT },
+    );
+    const scoredWindow = (new Date(sc.last).getTime() - batchStartedAt) / 1000;
+    scoredPerS = Number(sc.n) / scoredWindow;
+    say(`batch: ${sc.n} scored by ${scoredWindow.toFixed(1)} s after the start (${scoredPerS.toFixed(0)}/s); queue drained ${drain?.toFixed(1) ?? 'not'} s after the load`);
+
+    // A share of what follows alerts: the threshold goes to the score that the top `ALERT_SHARE` of
+    // the batch phase reached (the demo model trained on a small history alerts on very little).
+    const threshold = await alertOnTopShare(stack, batchTag, ALERT_SHARE);
+    say(`alert threshold set to ${threshold.toFixed(4)} (top ${(ALERT_SHARE * 100).toFixed(0)}% of the batch phase's scores)`);
+  }
 
   // ── single ──────────────────────────────────────────────────────────────
-  const singleTag = `bps${run}`;
-  const singleSeconds = Math.max(5, Math.round(f.seconds / 2));
-  const singleItems = Array.from({ length: singleSeconds * 4_000 }, () => traffic.take(singleTag, 1));
-  const singleBodies = singleItems.map((items) => JSON.stringify(items[0]));
-  const singleLog = new ResponseLog();
-  checks.push({ tag: singleTag, log: singleLog });
-  meter = cpuMeter(stack);
-  const single = await autocannonBodies(stack, singleBodies, {
-    connections: f.singleConnections,
-    seconds: singleSeconds,
-    log: singleLog,
-    idsOf: singleItems.map((b) => b.map((t) => t.id)),
-  });
-  const singlePerS = single['2xx'] / single.duration;
-  say(`single: ${single['2xx']} 2xx in ${single.duration.toFixed(1)} s (${singlePerS.toFixed(0)} requests/s), p99 ${single.latency.p99} ms, answers ${JSON.stringify(single.statusCodeStats)}`);
-  await waitUntilScored(stack.db, singleTag, singleLog.accepted().length, 300_000);
-  say(`single: ${meter()}`);
+  if (f.phases.has('single')) {
+    const singleTag = `bps${run}`;
+    const singleSeconds = Math.max(5, Math.round(f.seconds / 2));
+    const singleItems = Array.from({ length: singleSeconds * 4_000 }, () => traffic.take(singleTag, 1));
+    const singleBodies = singleItems.map((items) => JSON.stringify(items[0]));
+    const singleLog = new ResponseLog();
+    checks.push({ tag: singleTag, log: singleLog });
+    meter = cpuMeter(stack);
+    const singleStatements = await dbMeter(stack);
+    const single = await autocannonBodies(stack, singleBodies, {
+      connections: f.singleConnections,
+      seconds: singleSeconds,
+      log: singleLog,
+      idsOf: singleItems.map((b) => b.map((t) => t.id)),
+    });
+    singlePerS = single['2xx'] / single.duration;
+    singleP99 = single.latency.p99;
+    say(`single: ${single['2xx']} 2xx in ${single.duration.toFixed(1)} s (${singlePerS.toFixed(0)} requests/s), p99 ${single.latency.p99} ms, answers ${JSON.stringify(single.statusCodeStats)}`);
+    await waitUntilScored(stack.db, singleTag, singleLog.accepted().length, 300_000);
+    say(`single: ${meter()}`);
+    say(`single: ${await singleStatements(single['2xx'], 'request')} (and the scoring workers' share)`);
+  }
 
   // ── alerts at a steady rate ────────────────────────────────────────────
-  const alertTag = `bpa${run}`;
-  const alertSeconds = Math.max(5, Math.round(f.seconds / 2));
-  const alertItems = traffic.take(alertTag, alertSeconds * f.alertRate);
-  const alertLog = new ResponseLog();
-  checks.push({ tag: alertTag, log: alertLog });
-  alerts.received.clear();
-  meter = cpuMeter(stack);
-  let k = 0;
-  const paced = await runLoad({
-    baseUrl: stack.baseUrl,
-    apiKey: stack.apiKey,
-    ratePerSecond: f.alertRate,
-    batchSize: f.alertBatch,
-    seconds: alertSeconds,
-    maxTransactions: alertItems.length,
-    make: () => alertItems[k++],
-    log: alertLog,
-    maxInFlight: 256,
-  });
-  await waitUntilScored(stack.db, alertTag, alertLog.accepted().length, 120_000);
-  say(`alerts: ${meter()}`);
-  await sleep(1_000);
-  const alertLatencies: number[] = [];
-  for (const [id, times] of alerts.received) {
-    const sent = alertLog.sentAt.get(id);
-    if (sent !== undefined && id.startsWith(`${alertTag}-`)) alertLatencies.push(times[0] - sent);
+  if (f.phases.has('alerts')) {
+    const alertTag = `bpa${run}`;
+    const alertSeconds = Math.max(5, Math.round(f.seconds / 2));
+    const alertItems = traffic.take(alertTag, alertSeconds * f.alertRate);
+    const alertLog = new ResponseLog();
+    checks.push({ tag: alertTag, log: alertLog });
+    alerts.received.clear();
+    meter = cpuMeter(stack);
+    let k = 0;
+    const paced = await runLoad({
+      baseUrl: stack.baseUrl,
+      apiKey: stack.apiKey,
+      ratePerSecond: f.alertRate,
+      batchSize: f.alertBatch,
+      seconds: alertSeconds,
+      maxTransactions: alertItems.length,
+      make: () => alertItems[k++],
+      log: alertLog,
+      maxInFlight: 256,
+    });
+    await waitUntilScored(stack.db, alertTag, alertLog.accepted().length, 120_000);
+    say(`alerts: ${meter()}`);
+    await sleep(1_000);
+    alertLatencies = [];
+    for (const [id, times] of alerts.received) {
+      const sent = alertLog.sentAt.get(id);
+      if (sent !== undefined && id.startsWith(`${alertTag}-`)) alertLatencies.push(times[0] - sent);
   }
   const lat = await stack.db.sequelize.query<{ ms: number }>(
     'SELECT s.latency_ms AS ms FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
     { replacements: { p: `${alertTag}-%` }, type: QueryTypes.SELECT },
   );
-  const scoredLatencies = lat.map((r) => Number(r.ms));
-  const alertRateAchieved = paced.sent / paced.seconds;
+  scoredLatencies = lat.map((r) => Number(r.ms));
+  alertRateAchieved = paced.sent / paced.seconds;
   say(
     `alerts: ${paced.sent} sent at ${alertRateAchieved.toFixed(0)}/s in requests of ${f.alertBatch}; ${alertLatencies.length} alerts pushed; ` +
       `ingest→alert p50 ${pct(alertLatencies, 50).toFixed(0)} p95 ${pct(alertLatencies, 95).toFixed(0)} p99 ${pct(alertLatencies, 99).toFixed(0)} ms; ` +
       `request p99 ${pct(alertLog.requestLatencies, 99).toFixed(0)} ms`,
   );
+  }
 
   // ── synchronous decisions at a steady rate ──────────────────────────────
-  const decisionTag = `bpd${run}`;
-  const decisionSeconds = Math.max(5, Math.round(f.seconds / 2));
-  const decisionItems = traffic.take(decisionTag, decisionSeconds * f.decisionRate);
-  const decisionLog = new ResponseLog();
-  checks.push({ tag: decisionTag, log: decisionLog });
-  let d = 0;
-  meter = cpuMeter(stack);
-  const dec = await runLoad({
-    baseUrl: stack.baseUrl,
-    apiKey: stack.apiKey,
-    path: '/api/v1/decisions',
-    ratePerSecond: f.decisionRate,
-    batchSize: 1,
-    seconds: decisionSeconds,
-    maxTransactions: decisionItems.length,
-    make: () => decisionItems[d++],
-    log: decisionLog,
-    maxInFlight: 256,
-  });
-  const decisionRateAchieved = dec.sent / dec.seconds;
-  say(`decisions: ${meter()}`);
-  say(`decisions: ${dec.sent} at ${decisionRateAchieved.toFixed(0)}/s, answers ${JSON.stringify(Object.fromEntries(decisionLog.http))}`);
+  let decisionLatencies: number[] = [];
+  let decisionRateAchieved = Number.NaN;
+  if (f.phases.has('decisions')) {
+    // One second at the rate first, not counted in the latencies (its transactions are accounted like
+    // the rest): the decision path has not run before this phase, and its first requests run code the
+    // JIT has not compiled yet, which is not what an authorisation system running all day sees.
+    const warmTag = `bpw${run}`;
+    const warmItems = traffic.take(warmTag, f.decisionRate);
+    const warmLog = new ResponseLog();
+    checks.push({ tag: warmTag, log: warmLog });
+    let w = 0;
+    await runLoad({
+      baseUrl: stack.baseUrl,
+      apiKey: stack.apiKey,
+      path: '/api/v1/decisions',
+      ratePerSecond: f.decisionRate,
+      batchSize: 1,
+      seconds: 1,
+      maxTransactions: warmItems.length,
+      make: () => warmItems[w++],
+      log: warmLog,
+      maxInFlight: 256,
+    });
+    const decisionTag = `bpd${run}`;
+    const decisionSeconds = Math.max(5, Math.round(f.seconds / 2));
+    const decisionItems = traffic.take(decisionTag, decisionSeconds * f.decisionRate);
+    const decisionLog = new ResponseLog();
+    checks.push({ tag: decisionTag, log: decisionLog });
+    let d = 0;
+    meter = cpuMeter(stack);
+    const statements = await dbMeter(stack);
+    const dec = await runLoad({
+      baseUrl: stack.baseUrl,
+      apiKey: stack.apiKey,
+      path: '/api/v1/decisions',
+      ratePerSecond: f.decisionRate,
+      batchSize: 1,
+      seconds: decisionSeconds,
+      maxTransactions: decisionItems.length,
+      make: () => decisionItems[d++],
+      log: decisionLog,
+      maxInFlight: 256,
+    });
+    decisionRateAchieved = dec.sent / dec.seconds;
+    decisionLatencies = decisionLog.requestLatencies;
+    say(`decisions: ${await statements(dec.sent, 'decision')}`);
+    say(`decisions: ${meter()}`);
+    say(`decisions: ${dec.sent} at ${decisionRateAchieved.toFixed(0)}/s (after ${warmLog.requestLatencies.length} not counted to warm up), answers ${JSON.stringify(Object.fromEntries(decisionLog.http))}`);
+    // Where the time goes: the handler's own time (`latencyMs` in each answer: from the route's start to
+    // the answer, so without the HTTP parsing before it and the wait for the event loop) beside the
+    // time the client saw, and the client's p99 second by second (a tail spread over the phase or one bad second).
+    const sv = decisionLog.serverLatencies;
+    const bySecond: number[][] = [];
+    decisionLog.requestSentAt.forEach((t, i) => {
+      const sec = Math.floor((t - decisionLog.requestSentAt[0]) / 1000);
+      (bySecond[sec] ??= []).push(decisionLog.requestLatencies[i]);
+    });
+    say(
+      `decisions: in the handler p50 ${pct(sv, 50).toFixed(1)} p95 ${pct(sv, 95).toFixed(1)} p99 ${pct(sv, 99).toFixed(1)} ms; ` +
+        `seen by the client p50 ${pct(decisionLog.requestLatencies, 50).toFixed(1)} p99 ${pct(decisionLog.requestLatencies, 99).toFixed(1)} ms; ` +
+        `client p99 per second ${bySecond.map((xs) => pct(xs, 99).toFixed(0)).join(' ')} ms`,
+    );
+  }
 
   // ── accounting ──────────────────────────────────────────────────────────
   let lost = 0;
@@ -393,7 +482,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
     scoredPerS,
     batchDrainS: drain ?? Number.NaN,
     singlePerS,
-    singleP99: single.latency.p99,
+    singleP99,
     scoredP50: pct(scoredLatencies, 50),
     scoredP95: pct(scoredLatencies, 95),
     scoredP99: pct(scoredLatencies, 99),
@@ -402,9 +491,9 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
     alertP99: pct(alertLatencies, 99),
     alertsSeen: alertLatencies.length,
     alertRateAchieved,
-    decisionP50: pct(decisionLog.requestLatencies, 50),
-    decisionP95: pct(decisionLog.requestLatencies, 95),
-    decisionP99: pct(decisionLog.requestLatencies, 99),
+    decisionP50: pct(decisionLatencies, 50),
+    decisionP95: pct(decisionLatencies, 95),
+    decisionP99: pct(decisionLatencies, 99),
     decisionRateAchieved,
     lost,
     duplicated,
@@ -479,10 +568,10 @@ export async function run(argv: string[]): Promise<void> {
       ['figure', 'measured', 'goal', 'ratio', 'met'],
       rows.map(([name, v, goal, kind, unit]) => [
         name,
-        `${fmt(v, unit === 'ms' ? 1 : 0)}${unit ? ` ${unit}` : ''}`,
+        Number.isFinite(v) ? `${fmt(v, unit === 'ms' ? 1 : 0)}${unit ? ` ${unit}` : ''}` : 'not run',
         Number.isFinite(goal) ? `${kind === 'min' ? '≥' : goal === 0 ? '=' : '<'} ${goal}${unit ? ` ${unit}` : ''}` : '',
-        Number.isFinite(goal) && goal !== 0 ? `${(v / goal).toFixed(2)}×` : '',
-        !Number.isFinite(goal) ? '' : kind === 'min' ? (v >= goal ? 'yes' : 'no') : goal === 0 ? (v === 0 ? 'yes' : 'no') : v < goal ? 'yes' : 'no',
+        Number.isFinite(goal) && goal !== 0 && Number.isFinite(v) ? `${(v / goal).toFixed(2)}×` : '',
+        !Number.isFinite(goal) || !Number.isFinite(v) ? '' : kind === 'min' ? (v >= goal ? 'yes' : 'no') : goal === 0 ? (v === 0 ? 'yes' : 'no') : v < goal ? 'yes' : 'no',
       ]),
     ),
   );

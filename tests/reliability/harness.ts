@@ -365,6 +365,10 @@ export class ResponseLog {
   readonly refusedTimes: number[] = [];
   /** Milliseconds from send to answer, per request. */
   readonly requestLatencies: number[] = [];
+  /** performance.now() at which each request of requestLatencies was sent (same order). */
+  readonly requestSentAt: number[] = [];
+  /** The handler's own time a decision reports (`latencyMs`), per answered decision. */
+  readonly serverLatencies: number[] = [];
   /** performance.now() of the first answer that said the system holds the id (accepted, or duplicate on a resend). */
   readonly keptAt = new Map<string, number>();
   /** 503 answers without a Retry-After header (RFC 9110 §10.2.3 lets a 503 say when to come back; ours always do). */
@@ -502,9 +506,12 @@ export async function runLoad(o: LoadOptions): Promise<LoadSummary> {
         const res = await post(url, JSON.stringify(body), { 'content-type': 'application/json', authorization: `Bearer ${o.apiKey}` }, timeoutMs, agent);
         const text = res.text;
         o.log.requestLatencies.push(performance.now() - t0);
+        o.log.requestSentAt.push(t0);
         o.log.countHttp(String(res.status));
         if (decisions && res.status === 200) {
-          o.log.record(items[0].id, (JSON.parse(text) as { duplicate: boolean }).duplicate ? 'duplicate' : 'accepted');
+          const answer = JSON.parse(text) as { duplicate: boolean; latencyMs?: number };
+          if (answer.latencyMs !== undefined) o.log.serverLatencies.push(answer.latencyMs);
+          o.log.record(items[0].id, answer.duplicate ? 'duplicate' : 'accepted');
           o.log.acceptedTimes.push(performance.now());
         } else if (res.status === 202) {
           const results = (JSON.parse(text) as { results: { id: string | null; status: Answer }[] }).results;
