@@ -317,6 +317,17 @@ async function main(): Promise<void> {
     enableOfflineQueue: false,
   });
   redis.on('error', () => undefined);
+  // The first control read comes at once, and without an offline queue it fails while the
+  // connection is still being made (the "cannot read the control hash" line at every start):
+  // wait for the connection first, for at most 5 s (a Redis that is away leaves the defaults).
+  await new Promise<void>((resolve) => {
+    if (redis.status === 'ready') return resolve();
+    const timer = setTimeout(resolve, 5_000);
+    redis.once('ready', () => {
+      clearTimeout(timer);
+      resolve();
+    });
+  });
   const rate = parseRate(process.env.DEMO_FEED_RATE, 5);
   const fraudEnv = Number(process.env.DEMO_FEED_FRAUD_RATE);
   const fraudRate = process.env.DEMO_FEED_FRAUD_RATE && fraudEnv >= 0 && fraudEnv <= 0.2 ? fraudEnv : 0.01;
