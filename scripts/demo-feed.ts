@@ -328,6 +328,16 @@ async function main(): Promise<void> {
       resolve();
     });
   });
+  // npm start runs the feed beside the web server: wait for it to answer (at most 120 s), so the
+  // first batches are not refused and retried while it is still starting.
+  for (const until = Date.now() + 120_000; Date.now() < until; ) {
+    const up = await fetch(`${base}/api/health`, { signal: AbortSignal.timeout(2_000) }).then(
+      () => true,
+      () => false,
+    );
+    if (up) break;
+    await new Promise((r) => setTimeout(r, 500));
+  }
   const rate = parseRate(process.env.DEMO_FEED_RATE, 5);
   const fraudEnv = Number(process.env.DEMO_FEED_FRAUD_RATE);
   const fraudRate = process.env.DEMO_FEED_FRAUD_RATE && fraudEnv >= 0 && fraudEnv <= 0.2 ? fraudEnv : 0.01;
