@@ -114,6 +114,15 @@ interface Flags {
 const PHASES = ['batch', 'single', 'alerts', 'decisions'] as const;
 type Phase = (typeof PHASES)[number];
 
+/** `--only a,b`: the named phases, all when not given; a name that is not a phase is a usage error. */
+function phasesOf(only: string | undefined): Set<Phase> {
+  if (only === undefined) return new Set(PHASES);
+  const names = only.split(',').map((x) => x.trim()).filter((x) => x !== '');
+  const unknown = names.filter((x) => !PHASES.includes(x as Phase));
+  if (unknown.length > 0 || names.length === 0) throw new Error(`--only takes one or more of ${PHASES.join(', ')} (got "${only}")`);
+  return new Set(names as Phase[]);
+}
+
 function flags(argv: string[]): Flags {
   const { values } = parseArgs({
     args: argv,
@@ -146,7 +155,7 @@ function flags(argv: string[]): Flags {
     workers: Number(values.workers),
     durableDb: values['durable-db'] ?? false,
     profile: values.profile ?? false,
-    phases: new Set((values.only ?? PHASES.join(',')).split(',').map((x) => x.trim()).filter((x) => PHASES.includes(x as Phase)) as Phase[]),
+    phases: phasesOf(values.only),
     // Chargebacks arrive 3 to 45 days late: the history has to reach back far enough for labelled fraud.
     // (--quick shortens the phases only: a smaller history leaves too few labelled fraud to calibrate on.)
     cardholders: 500,
@@ -299,7 +308,7 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
   let scoredLatencies: number[] = [];
   let alertLatencies: number[] = [];
   let alertRateAchieved = Number.NaN;
-  let meter = cpuMeter(stack);
+  let meter: ReturnType<typeof cpuMeter>;
 
   // ── batch ───────────────────────────────────────────────────────────────
   if (f.phases.has('batch')) {
@@ -384,18 +393,18 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
     for (const [id, times] of alerts.received) {
       const sent = alertLog.sentAt.get(id);
       if (sent !== undefined && id.startsWith(`${alertTag}-`)) alertLatencies.push(times[0] - sent);
-  }
-  const lat = await stack.db.sequelize.query<{ ms: number }>(
-    'SELECT s.latency_ms AS ms FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
-    { replacements: { p: `${alertTag}-%` }, type: QueryTypes.SELECT },
-  );
-  scoredLatencies = lat.map((r) => Number(r.ms));
-  alertRateAchieved = paced.sent / paced.seconds;
-  say(
-    `alerts: ${paced.sent} sent at ${alertRateAchieved.toFixed(0)}/s in requests of ${f.alertBatch}; ${alertLatencies.length} alerts pushed; ` +
-      `ingest→alert p50 ${pct(alertLatencies, 50).toFixed(0)} p95 ${pct(alertLatencies, 95).toFixed(0)} p99 ${pct(alertLatencies, 99).toFixed(0)} ms; ` +
-      `request p99 ${pct(alertLog.requestLatencies, 99).toFixed(0)} ms`,
-  );
+    }
+    const lat = await stack.db.sequelize.query<{ ms: number }>(
+      'SELECT s.latency_ms AS ms FROM transactions t JOIN transaction_scores s ON s.transaction_id = t.id WHERE t.external_id LIKE :p',
+      { replacements: { p: `${alertTag}-%` }, type: QueryTypes.SELECT },
+    );
+    scoredLatencies = lat.map((r) => Number(r.ms));
+    alertRateAchieved = paced.sent / paced.seconds;
+    say(
+      `alerts: ${paced.sent} sent at ${alertRateAchieved.toFixed(0)}/s in requests of ${f.alertBatch}; ${alertLatencies.length} alerts pushed; ` +
+        `ingest→alert p50 ${pct(alertLatencies, 50).toFixed(0)} p95 ${pct(alertLatencies, 95).toFixed(0)} p99 ${pct(alertLatencies, 99).toFixed(0)} ms; ` +
+        `request p99 ${pct(alertLog.requestLatencies, 99).toFixed(0)} ms`,
+    );
   }
 
   // ── synchronous decisions at a steady rate ──────────────────────────────
@@ -409,39 +418,30 @@ async function oneRun(stack: Stack, f: Flags, traffic: Traffic, alerts: AlertLis
     const warmItems = traffic.take(warmTag, f.decisionRate);
     const warmLog = new ResponseLog();
     checks.push({ tag: warmTag, log: warmLog });
-    let w = 0;
-    await runLoad({
-      baseUrl: stack.baseUrl,
-      apiKey: stack.apiKey,
-      path: '/api/v1/decisions',
-      ratePerSecond: f.decisionRate,
-      batchSize: 1,
-      seconds: 1,
-      maxTransactions: warmItems.length,
-      make: () => warmItems[w++],
-      log: warmLog,
-      maxInFlight: 256,
-    });
+    const decide = (items: Payload[], seconds: number, log: ResponseLog) => {
+      let i = 0;
+      return runLoad({
+        baseUrl: stack.baseUrl,
+        apiKey: stack.apiKey,
+        path: '/api/v1/decisions',
+        ratePerSecond: f.decisionRate,
+        batchSize: 1,
+        seconds,
+        maxTransactions: items.length,
+        make: () => items[i++],
+        log,
+        maxInFlight: 256,
+      });
+    };
+    await decide(warmItems, 1, warmLog);
     const decisionTag = `bpd${run}`;
     const decisionSeconds = Math.max(5, Math.round(f.seconds / 2));
     const decisionItems = traffic.take(decisionTag, decisionSeconds * f.decisionRate);
     const decisionLog = new ResponseLog();
     checks.push({ tag: decisionTag, log: decisionLog });
-    let d = 0;
     meter = cpuMeter(stack);
     const statements = await dbMeter(stack);
-    const dec = await runLoad({
-      baseUrl: stack.baseUrl,
-      apiKey: stack.apiKey,
-      path: '/api/v1/decisions',
-      ratePerSecond: f.decisionRate,
-      batchSize: 1,
-      seconds: decisionSeconds,
-      maxTransactions: decisionItems.length,
-      make: () => decisionItems[d++],
-      log: decisionLog,
-      maxInFlight: 256,
-    });
+    const dec = await decide(decisionItems, decisionSeconds, decisionLog);
     decisionRateAchieved = dec.sent / dec.seconds;
     decisionLatencies = decisionLog.requestLatencies;
     say(`decisions: ${await statements(dec.sent, 'decision')}`);
