@@ -79,6 +79,8 @@ test('the threshold curve, the audit chain check and the admin screen work again
   await signIn(page, 'supervisor@demo.test', 'Board');
   await page.goto('/board?tab=threshold');
   await expect(page.getByRole('heading', { name: 'Alert threshold from capacity' })).toBeVisible();
+  // The demo seed set the first threshold from the team's capacity (DEMO_DAILY_CAPACITY, default 40).
+  await expect(page.getByText(new RegExp(`for a capacity of ${process.env.DEMO_DAILY_CAPACITY ?? 40} cases a day`))).toBeVisible();
   await page.getByRole('spinbutton', { name: 'Cases a day' }).fill('40');
   await expect(page.getByRole('status', { name: 'Where this lands' })).toContainText(/At \d+\.\d\s%: about/);
   await expect(page.getByText(/Precision and recall from /)).toBeVisible();

@@ -3,6 +3,8 @@ import { QueryTypes } from 'sequelize';
 import type { Socket } from 'socket.io-client';
 import { createApiKey } from '../../server/src/api-keys/api-key-repository';
 import { insertModelVersion } from '../../server/src/model-registry/model-repository';
+import { buildHistoryThresholdCurve } from '../../server/src/settings/threshold-curve';
+import { compileModel, parseModel } from '../../shared/src/model/index';
 import { createScoringWorker } from '../../workers/src/scoring.worker';
 import { createMailWorker } from '../../workers/src/mail.worker';
 import { startTestServer, type TestServer } from './helpers/test-server';
@@ -463,5 +465,42 @@ describe('threshold curve', () => {
     expect(at(0.52).recall).toBeCloseTo(tp / 45, 12);
     // Near the top only part of the last bin ([0.95, 1.00]) counts: (1.00 - 0.99) / 0.05 = 20 % of its 9 fraud rows.
     expect(at(0.99).recall).toBeCloseTo(9 * 0.2 / 45, 12);
+  });
+
+  it('on stored history, counts alerts and cases a day from the champion’s scores of the stored features', async () => {
+    // Two more on one card, so a card-day holds several transactions.
+    await postScored(ts, key, '2900.00', 990_001);
+    await postScored(ts, key, '12.00', 990_001);
+    const to = new Date(Date.now() + 60_000);
+    const from = new Date(to.getTime() - 3 * 86_400_000);
+    const c = await buildHistoryThresholdCurve(ts.server.db, { from, to }, 0.5);
+    // The same figures straight from the rows, scored here with the champion as stored.
+    const [champ] = await q<{ model_json: string }>("SELECT model_json FROM model_versions WHERE role = 'champion' ORDER BY id DESC LIMIT 1");
+    const scorer = compileModel(parseModel(JSON.parse(champ.model_json)));
+    const rows = await q<{ card_id: number; occurred_at: Date; features: string }>(
+      'SELECT t.card_id, t.occurred_at, f.features FROM transactions t JOIN transaction_features f ON f.transaction_id = t.id WHERE t.occurred_at >= ? AND t.occurred_at < ?',
+      [from, to],
+    );
+    expect(rows.length).toBeGreaterThan(10);
+    expect(c.traffic.scored).toBe(rows.length);
+    expect(c.traffic.days).toBeCloseTo(3, 9);
+    const p = rows.map((r) => scorer.probability(scorer.score(JSON.parse(r.features))));
+    const dayMax = new Map<string, number>();
+    rows.forEach((r, i) => {
+      const k = `${r.card_id}/${new Date(r.occurred_at).toISOString().slice(0, 10)}`;
+      dayMax.set(k, Math.max(dayMax.get(k) ?? 0, p[i]));
+    });
+    expect(dayMax.size).toBeLessThan(rows.length);
+    let between = 0;
+    for (const t of [0.01, 0.2, 0.5, 0.9]) {
+      const point = c.points.find((x: { threshold: number }) => x.threshold === t)!;
+      const alerts = p.filter((x) => x >= t).length;
+      if (alerts > 0 && alerts < rows.length) between += 1;
+      expect(point.alertsPerDay * c.traffic.days).toBeCloseTo(alerts, 9);
+      expect(point.casesPerDay * c.traffic.days).toBeCloseTo([...dayMax.values()].filter((x) => x >= t).length, 9);
+    }
+    // At least one threshold splits the rows, so the counts above are not all or nothing.
+    expect(between).toBeGreaterThan(0);
+    expect(c.precisionSource).toBe('holdout_histogram');
   });
 });

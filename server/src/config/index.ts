@@ -80,6 +80,8 @@ const schema = z.object({
   DEMO_HISTORY_DAYS: z.coerce.number().int().min(7).max(400).default(75),
   /** Invented cardholders of the demo issuer. */
   DEMO_CARDHOLDERS: z.coerce.number().int().min(50).max(100_000).default(3000),
+  /** Cases a day the demo team can work; the demo seed sets the first alert threshold from it. */
+  DEMO_DAILY_CAPACITY: z.coerce.number().int().min(1).max(100_000).default(40),
   /** Days a chargeback may take to arrive; training windows end this long ago. */
   LABEL_DELAY_DAYS: z.coerce.number().int().min(0).max(180).default(21),
 });

@@ -35,6 +35,7 @@ async function main() {
             days: c.DEMO_HISTORY_DAYS,
             cardholders: c.DEMO_CARDHOLDERS,
             labelDelayDays: c.LABEL_DELAY_DAYS,
+            dailyCapacity: c.DEMO_DAILY_CAPACITY,
             log: (line) => console.log(line),
           });
           console.log(h.rows ? `demo history: ${h.rows} transactions in ${((Date.now() - started) / 1000).toFixed(1)} s` : 'demo history: already present');

@@ -10,6 +10,10 @@ import { trainModelVersion } from '../training/train-model-version';
 import { appendAudit } from '../audit/audit-repository';
 import { createDemoWorld, DEMO_SEED, toIngestPayload, type SimulatedTransaction } from './simulator/index';
 import { demoCardholderEmail } from './demo-directory';
+import { buildHistoryThresholdCurve } from '../settings/threshold-curve';
+import { readAlertingSettings, writeAlertingSettings } from '../settings/settings-repository';
+import { readSupervisionSettings, writeSupervisionSettings } from '../settings/supervision-settings';
+import { thresholdForCapacity } from '@shared/api/supervision';
 
 /** The history seed and the live feed share one world (same cardholders and cards), with different id prefixes. */
 export const DEMO_WORLD_SEED = DEMO_SEED;
@@ -19,6 +23,12 @@ export interface HistoryOptions {
   cardholders: number;
   /** Days a chargeback may take to arrive; the first model trains on rows older than this. */
   labelDelayDays: number;
+  /**
+   * Cases a day the demo team can work. After training, the alert threshold is
+   * set from the first champion's capacity curve on the last 14 days of the
+   * history, the way a supervisor sets it. Absent or null leaves the threshold alone.
+   */
+  dailyCapacity?: number | null;
   log?: (line: string) => void;
 }
 
@@ -107,5 +117,48 @@ export async function seedDemoHistory(db: Database, redis: Redis, c: Config, o: 
     details: { role: 'champion', rows: outcome.counts.rows, testRocAuc: outcome.evaluation.rocAuc },
   });
   log(`first champion v1: ${outcome.counts.train} training rows, held-out ROC AUC ${outcome.evaluation.rocAuc.toFixed(3)}`);
+  const capacity = o.dailyCapacity ?? null;
+  if (capacity !== null) {
+    const set = await thresholdFromHistory(db, { from: new Date(to.getTime() - HISTORY_CURVE_DAYS * 86_400_000), to }, capacity);
+    log(
+      set
+        ? `alert threshold ${set.threshold.toFixed(2)} for ${capacity} cases a day (about ${set.casesPerDay.toFixed(1)} cases a day on the last ${HISTORY_CURVE_DAYS} days of history)`
+        : `alert threshold left as it was: even the highest threshold opens more than ${capacity} cases a day`,
+    );
+  }
   return { rows, modelVersionId: outcome.modelVersionId };
+}
+
+const HISTORY_CURVE_DAYS = 14;
+
+/**
+ * Sets the alert threshold (and the capacity it came from) from the champion's
+ * curve on stored history: the lowest threshold whose cases a day fit the
+ * capacity. Audited as the demo seed's change. Null when no threshold fits.
+ */
+async function thresholdFromHistory(db: Database, window: { from: Date; to: Date }, dailyCapacity: number) {
+  const before = await readAlertingSettings(db);
+  const curve = await buildHistoryThresholdCurve(db, window, before.threshold);
+  const point = thresholdForCapacity(curve.points, dailyCapacity);
+  if (!point) return null;
+  const after = { ...before, threshold: point.threshold };
+  const supervision = await readSupervisionSettings(db);
+  await writeSupervisionSettings(db, { ...supervision, dailyCapacity }, null);
+  await writeAlertingSettings(db, after, null);
+  await appendAudit(db, {
+    actorType: 'system',
+    actorLabel: 'demo seed',
+    action: 'settings.threshold',
+    targetType: 'settings',
+    targetId: 'alerting',
+    outcome: 'success',
+    details: {
+      before,
+      after,
+      dailyCapacity,
+      expected: { casesPerDay: point.casesPerDay, alertsPerDay: point.alertsPerDay, precision: point.precision, recall: point.recall },
+      traffic: curve.traffic,
+    },
+  });
+  return point;
 }

@@ -1,6 +1,7 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db/database';
 import type { PrecisionSource, ThresholdCurve, ThresholdPoint } from '@shared/api/supervision';
+import { compileModel, parseModel, type Row } from '@shared/model/index';
 
 /** Thresholds the curve is computed at: 0.01, 0.02, ..., 0.99. */
 export const GRID = Array.from({ length: 99 }, (_, i) => (i + 1) / 100);
@@ -75,6 +76,71 @@ function isHistogram(v: unknown): v is ClassHistogram {
 
 const toBuckets = (rows: { b: number; n: number }[]) => new Map(rows.map((r) => [Number(r.b), Number(r.n)]));
 
+/** The bucket of a probability, as BUCKET_SQL computes it in the database. */
+export const bucketOf = (p: number) => Math.min(99, Math.floor(p * 100 + 1e-9));
+
+function curvePoints(alerts: number[], cases: number[], spanDays: number, pr: { precision: number | null; recall: number | null }[]): ThresholdPoint[] {
+  return GRID.map((threshold, i) => ({
+    threshold,
+    alertsPerDay: alerts[i] / spanDays,
+    casesPerDay: cases[i] / spanDays,
+    precision: pr[i].precision,
+    recall: pr[i].recall,
+  }));
+}
+
+interface ChampionRow {
+  id: number;
+  label: string;
+  metrics: string | null;
+}
+
+/**
+ * Precision and recall at each grid threshold: from the champion's held-out
+ * probability histogram when it is stored, else from labelled transactions
+ * the champion scored live.
+ */
+async function championPrecision(db: Database, champion: ChampionRow | undefined) {
+  let precisionSource: PrecisionSource = 'none';
+  let pr: { precision: number | null; recall: number | null }[] = GRID.map(() => ({ precision: null, recall: null }));
+  let precisionNote = 'No champion evaluation and no labelled scored transactions: precision and recall are unknown.';
+  const metrics = champion?.metrics ? (JSON.parse(champion.metrics) as { evaluation?: { probabilityHistogram?: unknown; n?: number; fraud?: number } }) : null;
+  const hist = metrics?.evaluation?.probabilityHistogram;
+  if (isHistogram(hist)) {
+    precisionSource = 'holdout_histogram';
+    pr = precisionRecallFromHistogram(hist);
+    const total = hist.fraud.reduce((s, x) => s + x, 0) + hist.legitimate.reduce((s, x) => s + x, 0);
+    const width = hist.edges[1] - hist.edges[0];
+    precisionNote =
+      `From the champion's held-out test rows (${total.toLocaleString('en')} transactions, ${hist.fraud.reduce((s, x) => s + x, 0)} fraud): ` +
+      `exact at steps of ${width.toFixed(2)}, interpolated between them. Held-out rows have the fraud rate of the training period; today's may differ.`;
+  } else if (champion) {
+    const rows = await db.sequelize.query<{ b: number; label: 'fraud' | 'legitimate'; n: number }>(
+      `SELECT ${BUCKET_SQL('s.probability')} AS b, l.label, COUNT(*) AS n
+       FROM transaction_scores s
+       JOIN (SELECT transaction_id, MAX(id) AS id FROM labels GROUP BY transaction_id) last ON last.transaction_id = s.transaction_id
+       JOIN labels l ON l.id = last.id
+       WHERE s.model_version_id = ?
+       GROUP BY b, l.label`,
+      { replacements: [champion.id], type: QueryTypes.SELECT },
+    );
+    const fraud = toBuckets(rows.filter((r) => r.label === 'fraud'));
+    const legit = toBuckets(rows.filter((r) => r.label === 'legitimate'));
+    const totalFraud = [...fraud.values()].reduce((s, x) => s + x, 0);
+    if (rows.length > 0 && totalFraud > 0) {
+      precisionSource = 'labelled_scores';
+      // Bucket 0 holds fraud below every grid threshold: it counts toward recall's denominator.
+      pr = precisionRecall(atOrAbove(fraud), atOrAbove(legit), totalFraud);
+      const labelled = rows.reduce((s, r) => s + Number(r.n), 0);
+      precisionNote =
+        `The champion's evaluation holds no score histogram, so these come from ${labelled.toLocaleString('en')} labelled transactions it scored live (${totalFraud} fraud). ` +
+        'Labels come mostly from alerted cases, so recall is likely overstated.';
+    }
+  }
+
+  return { precisionSource, pr, precisionNote };
+}
+
 /**
  * The threshold curve for the supervisor: from recent traffic (scored
  * transactions of the last `days` days), alerts and cases per day at each
@@ -85,7 +151,7 @@ const toBuckets = (rows: { b: number; n: number }[]) => new Map(rows.map((r) => 
 export async function buildThresholdCurve(db: Database, days: number, currentThreshold: number): Promise<ThresholdCurve> {
   const now = new Date();
   const windowStart = new Date(now.getTime() - days * 86_400_000);
-  const [champion] = await db.sequelize.query<{ id: number; label: string; metrics: string | null }>(
+  const [champion] = await db.sequelize.query<ChampionRow>(
     "SELECT id, label, metrics FROM model_versions WHERE role = 'champion' ORDER BY id DESC LIMIT 1",
     { type: QueryTypes.SELECT },
   );
@@ -129,54 +195,56 @@ export async function buildThresholdCurve(db: Database, days: number, currentThr
   const alerts = atOrAbove(toBuckets(alertRows));
   const cases = atOrAbove(toBuckets(caseRows));
 
-  let precisionSource: PrecisionSource = 'none';
-  let pr: { precision: number | null; recall: number | null }[] = GRID.map(() => ({ precision: null, recall: null }));
-  let precisionNote = 'No champion evaluation and no labelled scored transactions: precision and recall are unknown.';
-  const metrics = champion?.metrics ? (JSON.parse(champion.metrics) as { evaluation?: { probabilityHistogram?: unknown; n?: number; fraud?: number } }) : null;
-  const hist = metrics?.evaluation?.probabilityHistogram;
-  if (isHistogram(hist)) {
-    precisionSource = 'holdout_histogram';
-    pr = precisionRecallFromHistogram(hist);
-    const total = hist.fraud.reduce((s, x) => s + x, 0) + hist.legitimate.reduce((s, x) => s + x, 0);
-    const width = hist.edges[1] - hist.edges[0];
-    precisionNote =
-      `From the champion's held-out test rows (${total.toLocaleString('en')} transactions, ${hist.fraud.reduce((s, x) => s + x, 0)} fraud): ` +
-      `exact at steps of ${width.toFixed(2)}, interpolated between them. Held-out rows have the fraud rate of the training period; today's may differ.`;
-  } else if (champion) {
-    const rows = await db.sequelize.query<{ b: number; label: 'fraud' | 'legitimate'; n: number }>(
-      `SELECT ${BUCKET_SQL('s.probability')} AS b, l.label, COUNT(*) AS n
-       FROM transaction_scores s
-       JOIN (SELECT transaction_id, MAX(id) AS id FROM labels GROUP BY transaction_id) last ON last.transaction_id = s.transaction_id
-       JOIN labels l ON l.id = last.id
-       WHERE s.model_version_id = ?
-       GROUP BY b, l.label`,
-      { replacements: [champion.id], type: QueryTypes.SELECT },
-    );
-    const fraud = toBuckets(rows.filter((r) => r.label === 'fraud'));
-    const legit = toBuckets(rows.filter((r) => r.label === 'legitimate'));
-    const totalFraud = [...fraud.values()].reduce((s, x) => s + x, 0);
-    if (rows.length > 0 && totalFraud > 0) {
-      precisionSource = 'labelled_scores';
-      // Bucket 0 holds fraud below every grid threshold: it counts toward recall's denominator.
-      pr = precisionRecall(atOrAbove(fraud), atOrAbove(legit), totalFraud);
-      const labelled = rows.reduce((s, r) => s + Number(r.n), 0);
-      precisionNote =
-        `The champion's evaluation holds no score histogram, so these come from ${labelled.toLocaleString('en')} labelled transactions it scored live (${totalFraud} fraud). ` +
-        'Labels come mostly from alerted cases, so recall is likely overstated.';
-    }
-  }
-
-  const points: ThresholdPoint[] = GRID.map((threshold, i) => ({
-    threshold,
-    alertsPerDay: alerts[i] / spanDays,
-    casesPerDay: cases[i] / spanDays,
-    precision: pr[i].precision,
-    recall: pr[i].recall,
-  }));
+  const { precisionSource, pr, precisionNote } = await championPrecision(db, champion);
   return {
-    points,
+    points: curvePoints(alerts, cases, spanDays, pr),
     current: currentThreshold,
     traffic: { days: spanDays, from: from.toISOString(), to: now.toISOString(), scored: Number(scored) },
+    precisionSource,
+    precisionNote,
+    champion: champion ? { id: Number(champion.id), label: champion.label } : null,
+  };
+}
+
+/**
+ * The threshold curve of a newly trained champion on stored history: before
+ * any live traffic is scored (a first start after a back-fill), alerts and
+ * cases per day come from the champion's scores of the stored features of
+ * transactions that occurred in [from, to), counted per day of that span;
+ * precision and recall as in the live curve. A case is counted once per card
+ * and UTC day, its highest score deciding.
+ */
+export async function buildHistoryThresholdCurve(db: Database, window: { from: Date; to: Date }, currentThreshold: number): Promise<ThresholdCurve> {
+  const [champion] = await db.sequelize.query<ChampionRow & { model_json: string }>(
+    "SELECT id, label, metrics, model_json FROM model_versions WHERE role = 'champion' ORDER BY id DESC LIMIT 1",
+    { type: QueryTypes.SELECT },
+  );
+  const alertBuckets = new Map<number, number>();
+  const cardDays = new Map<string, number>();
+  let scored = 0;
+  if (champion) {
+    const compiled = compileModel(parseModel(JSON.parse(champion.model_json)));
+    const rows = await db.sequelize.query<{ card_id: number; occurred_at: Date; features: string }>(
+      `SELECT t.card_id, t.occurred_at, f.features FROM transactions t JOIN transaction_features f ON f.transaction_id = t.id
+       WHERE t.occurred_at >= ? AND t.occurred_at < ?`,
+      { replacements: [window.from, window.to], type: QueryTypes.SELECT },
+    );
+    for (const r of rows) {
+      const b = bucketOf(compiled.probability(compiled.score(JSON.parse(r.features) as Row)));
+      alertBuckets.set(b, (alertBuckets.get(b) ?? 0) + 1);
+      const key = `${r.card_id}:${new Date(r.occurred_at).toISOString().slice(0, 10)}`;
+      cardDays.set(key, Math.max(cardDays.get(key) ?? 0, b));
+    }
+    scored = rows.length;
+  }
+  const caseBuckets = new Map<number, number>();
+  for (const b of cardDays.values()) caseBuckets.set(b, (caseBuckets.get(b) ?? 0) + 1);
+  const spanDays = Math.max((window.to.getTime() - window.from.getTime()) / 86_400_000, 1 / 24);
+  const { precisionSource, pr, precisionNote } = await championPrecision(db, champion);
+  return {
+    points: curvePoints(atOrAbove(alertBuckets), atOrAbove(caseBuckets), spanDays, pr),
+    current: currentThreshold,
+    traffic: { days: spanDays, from: window.from.toISOString(), to: window.to.toISOString(), scored },
     precisionSource,
     precisionNote,
     champion: champion ? { id: Number(champion.id), label: champion.label } : null,
