@@ -97,6 +97,14 @@ test('the threshold curve, the audit chain check and the admin screen work again
   await signIn(admin, 'admin@demo.test', 'Admin');
   await expect(admin.getByRole('table', { name: 'Staff accounts' })).toContainText('Ines Varga');
   await expect(admin.getByRole('table', { name: 'API keys' })).toContainText('Demo upstream');
+  // The e2e stack runs no demo feed: the panel says it has not reported, and a pause request is taken.
+  await expect(admin.getByRole('status', { name: 'Feed state' })).toContainText('The feed has not reported yet');
+  const toggle = admin.getByRole('button', { name: /^(Pause|Resume) the feed$/ });
+  const before = (await toggle.textContent())!;
+  await toggle.click();
+  await expect(toggle).not.toHaveText(before);
+  await toggle.click();
+  await expect(toggle).toHaveText(before);
   await admin.screenshot({ path: 'artifacts/e2e/admin.png', fullPage: true });
   await adminContext.close();
 });

@@ -14,7 +14,8 @@
  * Control: every 2 s the feed reads the hash `<prefix>:demo-feed:control`
  * (`paused` "1"/"0", `rate` transactions per second), so an admin screen can
  * pause it or change its pace; it writes `<prefix>:demo-feed:stats` (sent,
- * accepted, duplicates, rejected, retries, lastError, updatedAt, rate, paused).
+ * accepted, duplicates, rejected, retries, lastError, lastErrorAt, updatedAt, rate,
+ * paused).
  *
  * Delivery: each transaction is sent once its time has come, in batches, so
  * `occurredAt` is the moment of sending (within a tick). On 503, 429, other
@@ -28,6 +29,7 @@
  */
 import { pathToFileURL } from 'node:url';
 import { Redis } from 'ioredis';
+import { DEMO_FEED_MAX_RATE } from '../shared/src/api/admin';
 import { createDemoWorld, DEMO_SEED, toIngestPayload, type DemoWorld, type SimulatedTransaction } from '../server/src/demo/simulator/index';
 
 /** The two hash commands the feed needs (ioredis and ioredis-mock both have them). */
@@ -71,6 +73,8 @@ export interface FeedStats {
   rejected: number;
   retries: number;
   lastError: string;
+  /** When the last error happened (ISO 8601); empty before the first. */
+  lastErrorAt: string;
   rate: number;
   paused: boolean;
 }
@@ -84,7 +88,7 @@ export interface DemoFeed {
 }
 
 /** Most transactions per second the control hash may ask for. */
-export const MAX_FEED_RATE = 1000;
+export const MAX_FEED_RATE = DEMO_FEED_MAX_RATE;
 
 /** Runs of 12-19 digits, the length of a card number, scrubbed from anything the feed repeats from a server. */
 const DIGIT_RUN = /\d(?:[ -]?\d){11,18}/g;
@@ -114,7 +118,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
   const timeout = o.requestTimeoutMs ?? 15_000;
   const maxLag = o.maxLagMs ?? 10_000;
   const log = o.log ?? ((message, fields) => console.log(JSON.stringify({ msg: message, ...fields })));
-  const stats: FeedStats = { sent: 0, accepted: 0, duplicates: 0, rejected: 0, retries: 0, lastError: '', rate: o.rate, paused: false };
+  const stats: FeedStats = { sent: 0, accepted: 0, duplicates: 0, rejected: 0, retries: 0, lastError: '', lastErrorAt: '', rate: o.rate, paused: false };
   const stopper = new AbortController();
   let statsDirty = true;
 
@@ -160,6 +164,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
         rejected: stats.rejected,
         retries: stats.retries,
         lastError: stats.lastError,
+        lastErrorAt: stats.lastErrorAt,
         rate: stats.rate,
         paused: stats.paused ? '1' : '0',
         updatedAt: new Date().toISOString(),
@@ -190,6 +195,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
     if (rejected > 0) {
       stats.rejected += rejected;
       stats.lastError = `${rejected} of ${batch.length} rejected (${[...paths].slice(0, 5).join(', ')})`;
+      stats.lastErrorAt = new Date().toISOString();
       log('transactions rejected', { rejected, batch: batch.length, fields: [...paths].slice(0, 5).join(',') });
     }
   }
@@ -225,6 +231,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
           stats.sent += batch.length;
           stats.rejected += batch.length;
           stats.lastError = failure;
+          stats.lastErrorAt = new Date().toISOString();
           statsDirty = true;
           log('batch refused', { status: res.status, batch: batch.length, error: failure });
           return;
@@ -238,6 +245,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
       }
       stats.retries++;
       stats.lastError = failure;
+      stats.lastErrorAt = new Date().toISOString();
       statsDirty = true;
       log('will retry the same batch', { error: failure, attempt: attempt + 1, waitMs: Math.round(wait), batch: batch.length });
       await writeStats();

@@ -1,6 +1,6 @@
 import { configure, screen, waitFor, within } from '@testing-library/react';
 import { describe, expect, it } from 'vitest';
-import type { AdminApiKey, AdminUser } from '@shared/api/admin';
+import type { AdminApiKey, AdminUser, DemoFeedState } from '@shared/api/admin';
 import { signedInRoutes, stubFetch, users } from './support/fetch-stub';
 import { renderApp } from './support/render-app';
 
@@ -27,6 +27,8 @@ function adminRoutes(extra: Routes = {}): Routes {
     ...signedInRoutes('admin'),
     'GET /api/admin/users': () => ({ status: 200, body: { users: people() } }),
     'GET /api/admin/api-keys': { status: 200, body: { apiKeys: [key(1, { lastUsedAt: T }), key(2)] } },
+    // Outside the local demo the feed endpoint does not exist.
+    'GET /api/demo/feed': { status: 404, body: { error: { code: 'not_found', message: 'Not found' } } },
     ...extra,
   };
 }
@@ -133,5 +135,72 @@ describe('Admin: API keys', { timeout: 30_000 }, () => {
     await user.click(within(dialog).getByRole('button', { name: 'Revoke' }));
     await waitFor(() => expect(api.callsTo('POST', '/api/admin/api-keys/2/revoke')).toHaveLength(1));
     expect(await screen.findByText(/^Revoked/)).toBeInTheDocument();
+  });
+});
+
+describe('Admin: demo feed', { timeout: 30_000 }, () => {
+  const ago = (ms: number) => new Date(Date.now() - ms).toISOString();
+  const feed = (over: Partial<DemoFeedState> = {}): DemoFeedState => ({
+    requested: { paused: null, rate: null },
+    reported: { paused: false, rate: 5, at: ago(2000) },
+    totals: { sent: 12_345, accepted: 12_300, duplicates: 40, rejected: 5, retries: 3 },
+    lastError: { message: 'HTTP 503 unavailable', at: ago(60_000) },
+    ...over,
+  });
+
+  it('is absent outside the demo', async () => {
+    stubFetch(adminRoutes());
+    await openAdmin();
+    await screen.findByRole('table', { name: 'API keys' });
+    expect(screen.queryByRole('heading', { name: 'Demo transaction feed' })).not.toBeInTheDocument();
+  });
+
+  it('shows the pace, the totals and the last problem, and pauses the feed', async () => {
+    const api = stubFetch(
+      adminRoutes({
+        'GET /api/demo/feed': { status: 200, body: { feed: feed() } },
+        'PUT /api/demo/feed': (r) => ({ status: 200, body: { feed: feed({ requested: { paused: (r.body as { paused: boolean }).paused, rate: null } }) } }),
+      }),
+    );
+    const { user } = await openAdmin();
+    const state = await screen.findByRole('status', { name: 'Feed state' });
+    expect(state).toHaveTextContent(/Running at 5 a second \(reported \d s ago\)/);
+    const totals = screen.getByLabelText('Feed totals since it started');
+    expect(totals).toHaveTextContent('sent12,345');
+    expect(totals).toHaveTextContent('duplicates40');
+    expect(screen.getByText('HTTP 503 unavailable')).toBeInTheDocument();
+    await user.click(screen.getByRole('button', { name: 'Pause the feed' }));
+    await waitFor(() => expect(api.callsTo('PUT', '/api/demo/feed')).toHaveLength(1));
+    expect(api.callsTo('PUT', '/api/demo/feed')[0].body).toEqual({ paused: true });
+    // Asked, not yet picked up: the feed still reports running.
+    expect(await screen.findByText(/reaches the feed within a few seconds/)).toBeInTheDocument();
+    expect(screen.getByRole('button', { name: 'Resume the feed' })).toBeInTheDocument();
+  });
+
+  it('refuses a pace out of range before sending, then sends one in range', async () => {
+    const api = stubFetch(
+      adminRoutes({
+        'GET /api/demo/feed': { status: 200, body: { feed: feed() } },
+        'PUT /api/demo/feed': { status: 200, body: { feed: feed({ requested: { paused: null, rate: 12.5 } }) } },
+      }),
+    );
+    const { user } = await openAdmin();
+    const form = await screen.findByRole('form', { name: 'Feed pace' });
+    const input = within(form).getByRole('spinbutton', { name: 'Transactions a second' });
+    await user.type(input, '5000');
+    expect(within(form).getByText('Between 0.1 and 1,000')).toBeInTheDocument();
+    expect(within(form).getByRole('button', { name: 'Set pace' })).toBeDisabled();
+    await user.clear(input);
+    await user.type(input, '12.5');
+    await user.click(within(form).getByRole('button', { name: 'Set pace' }));
+    await waitFor(() => expect(api.callsTo('PUT', '/api/demo/feed')).toHaveLength(1));
+    expect(api.callsTo('PUT', '/api/demo/feed')[0].body).toEqual({ rate: 12.5 });
+  });
+
+  it('says when the feed has stopped reporting', async () => {
+    stubFetch(adminRoutes({ 'GET /api/demo/feed': { status: 200, body: { feed: feed({ reported: { paused: false, rate: 5, at: ago(120_000) }, lastError: null }) } } }));
+    await openAdmin();
+    const state = await screen.findByRole('status', { name: 'Feed state' });
+    expect(state).toHaveTextContent(/no report for 2 min, so the feed process is probably not running/);
   });
 });

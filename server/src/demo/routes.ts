@@ -1,5 +1,5 @@
 import type { Redis } from 'ioredis';
-import { z } from 'zod';
+import { demoFeedControlSchema, type DemoFeedState } from '@shared/api/admin';
 import { PUBLIC, needs, type RouteSpec } from '../access/route-table';
 import { parseOrThrow } from '../lib/validate';
 import type { Database } from '../db/database';
@@ -9,28 +9,22 @@ import { AppError } from '../lib/app-error';
 import { DEMO_ACCOUNTS } from './demo-accounts';
 import { listCapturedMail, readCapturedMail } from './mailbox';
 
-/** Demo-only helpers: the sign-in hint and the captured-mail viewer. Absent in production. */
-const feedControlSchema = z
-  .object({ paused: z.boolean().optional(), rate: z.number().min(0.1).max(2000).optional() })
-  .strict()
-  .refine((v) => v.paused !== undefined || v.rate !== undefined, { message: 'Send paused, rate or both.' });
-
+/** Demo-only helpers: the feed's controls, the sign-in hint and the captured-mail viewer. Absent in production. */
 export function demoRoutes(c: Config, d: { redis: Redis; db: Database }): RouteSpec[] {
   const demo = c.EDGECASE_MODE !== 'production';
   const controlKey = `${c.REDIS_PREFIX}:demo-feed:control`;
   const statsKey = `${c.REDIS_PREFIX}:demo-feed:stats`;
-  const feedState = async () => {
+  const feedState = async (): Promise<DemoFeedState> => {
     const [control, stats] = await Promise.all([d.redis.hgetall(controlKey), d.redis.hgetall(statsKey)]);
+    const count = (k: string) => Number(stats[k] ?? 0);
     return {
-      paused: control.paused === '1',
-      rate: control.rate ? Number(control.rate) : null,
-      stats: {
-        sent: Number(stats.sent ?? 0),
-        accepted: Number(stats.accepted ?? 0),
-        rejected: Number(stats.rejected ?? 0),
-        lastError: stats.lastError || null,
-        updatedAt: stats.updatedAt || null,
+      requested: {
+        paused: control.paused === undefined ? null : control.paused === '1',
+        rate: control.rate ? Number(control.rate) : null,
       },
+      reported: stats.updatedAt ? { paused: stats.paused === '1', rate: Number(stats.rate), at: stats.updatedAt } : null,
+      totals: { sent: count('sent'), accepted: count('accepted'), duplicates: count('duplicates'), rejected: count('rejected'), retries: count('retries') },
+      lastError: stats.lastError ? { message: stats.lastError, at: stats.lastErrorAt || null } : null,
     };
   };
   return [
@@ -51,7 +45,7 @@ export function demoRoutes(c: Config, d: { redis: Redis; db: Database }): RouteS
       summary: 'Pause, resume or change the rate of the demo feed',
       handler: async (req, res) => {
         if (!demo) throw AppError.notFound();
-        const body = parseOrThrow(feedControlSchema, req.body);
+        const body = parseOrThrow(demoFeedControlSchema, req.body);
         const fields: Record<string, string> = {};
         if (body.paused !== undefined) fields.paused = body.paused ? '1' : '0';
         if (body.rate !== undefined) fields.rate = String(body.rate);

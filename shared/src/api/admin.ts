@@ -77,3 +77,28 @@ export interface ApiKeyCreated {
   key: string;
   apiKey: AdminApiKey;
 }
+
+// ---------------------------------------------------------------- demo feed
+
+/** The demo feed's highest pace in transactions per second (the simulator's own limit). */
+export const DEMO_FEED_MAX_RATE = 1000;
+export const DEMO_FEED_MIN_RATE = 0.1;
+
+/** PUT /api/demo/feed: pause or resume, change the pace, or both. */
+export const demoFeedControlSchema = z
+  .object({ paused: z.boolean().optional(), rate: z.number().min(DEMO_FEED_MIN_RATE).max(DEMO_FEED_MAX_RATE).optional() })
+  .strict()
+  .refine((v) => v.paused !== undefined || v.rate !== undefined, { message: 'Send paused, rate or both.' });
+export type DemoFeedControl = z.infer<typeof demoFeedControlSchema>;
+
+/** The demo feed (local demo only): what an admin asked for and what the feed last reported. */
+export interface DemoFeedState {
+  /** Set by an admin; null where nobody asked (the feed's start settings hold). */
+  requested: { paused: boolean | null; rate: number | null };
+  /** The feed's last report (it reports every few seconds while it runs); null before its first. */
+  reported: { paused: boolean; rate: number; at: string } | null;
+  /** Since the feed process started. */
+  totals: { sent: number; accepted: number; duplicates: number; rejected: number; retries: number };
+  /** The feed's last failure (a refused or retried batch) and when it happened; it stays after the feed recovers. */
+  lastError: { message: string; at: string | null } | null;
+}

@@ -3,6 +3,7 @@ import { NowPanel, ScreenHeader } from '@/components/ui/screen-header';
 import { useApiKeys } from '../api/get-api-keys';
 import { useUsers } from '../api/get-users';
 import { ApiKeysPanel } from './api-keys-panel';
+import { DemoFeedPanel } from './demo-feed-panel';
 import { UsersPanel } from './users-panel';
 
 function Now() {
@@ -29,7 +30,7 @@ function Now() {
   );
 }
 
-/** Admin: people and API keys. */
+/** Admin: people, API keys and, in the local demo, the transaction feed. */
 export function AdminScreen({ meId }: { meId: number }) {
   return (
     <div className="flex flex-col gap-4">
@@ -42,6 +43,9 @@ export function AdminScreen({ meId }: { meId: number }) {
       </PanelBoundary>
       <PanelBoundary title="API keys">
         <ApiKeysPanel />
+      </PanelBoundary>
+      <PanelBoundary title="Demo transaction feed">
+        <DemoFeedPanel />
       </PanelBoundary>
     </div>
   );
