@@ -104,7 +104,10 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
     serializers: {
       // The query string is dropped; the path can still carry what a caller put in it (a card number for an id).
       req: (req: { method: string; url: string }) => ({ method: req.method, url: scrubDigits(req.url.split('?')[0]) }),
-      res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+      // The standard serializer reads null when the headers were not out yet as the line was written (seen on 4xx
+      // answers); the status the app set is on the raw response, and `sent: false` says so.
+      res: (res: { statusCode: number | null; raw?: { statusCode: number } }) =>
+        res.statusCode === null ? { statusCode: res.raw?.statusCode ?? null, sent: false } : { statusCode: res.statusCode },
     },
   });
   // Upstream systems call /api/v1 thousands of times a second: pino-http's per-request child logger
