@@ -1,4 +1,4 @@
-import { act, screen, waitFor, within } from '@testing-library/react';
+import { act, fireEvent, screen, waitFor, within } from '@testing-library/react';
 import { beforeEach, describe, expect, it, vi } from 'vitest';
 import { BACKFILL_PROGRESS_EVENT, type BackfillImport, type BackfillProgressEvent } from '@shared/api/backfill';
 import { currentSocket } from './support/fake-socket';
@@ -100,6 +100,21 @@ describe('Data screen: CSV back-fill', () => {
     expect(screen.getByRole('button', { name: 'Start import' })).toBeDisabled();
     const recent = await screen.findByRole('table', { name: 'Your recent imports' });
     expect(within(recent).getByRole('link', { name: 'Error report of import 7' })).toHaveAttribute('href', '/api/backfill/7/errors.csv');
+  });
+
+  it('refuses a drop of several files instead of importing the first of them', async () => {
+    setup();
+    await screen.findByRole('heading', { level: 1, name: 'Data' });
+    const zone = screen.getByLabelText('CSV file').parentElement!;
+    const files = [csvFile(), new File(['y'], 'more.csv', { type: 'text/csv' })];
+    fireEvent.drop(zone, { dataTransfer: { files, types: ['Files'] } });
+    expect(await screen.findByRole('alert')).toHaveTextContent('2 files were dropped; an import takes one file.');
+    expect(screen.getByRole('button', { name: 'Start import' })).toBeDisabled();
+    // One file dropped is taken.
+    fireEvent.drop(zone, { dataTransfer: { files: [csvFile()], types: ['Files'] } });
+    await waitFor(() => expect(screen.queryByRole('alert')).not.toBeInTheDocument());
+    expect(screen.getByText(/Selected: history\.csv/)).toBeInTheDocument();
+    expect(screen.getByRole('button', { name: 'Start import' })).toBeEnabled();
   });
 
   it('sends the file by XHR with the CSRF token, then shows sent bytes and the server’s counts from the socket', async () => {

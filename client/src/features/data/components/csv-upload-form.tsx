@@ -33,7 +33,15 @@ export function CsvUploadForm({ busy, onStart, onCancel }: CsvUploadFormProps) {
   const onDrop = (event: DragEvent<HTMLDivElement>) => {
     event.preventDefault();
     setDragging(false);
-    if (!busy) choose(event.dataTransfer.files[0]);
+    if (busy) return;
+    const dropped = event.dataTransfer.files;
+    if (dropped.length > 1) {
+      // One import per file: taking the first of several silently would leave the others out unnoticed.
+      setFile(null);
+      setProblem(`${dropped.length} files were dropped; an import takes one file. Drop them one at a time.`);
+      return;
+    }
+    choose(dropped[0]);
   };
   const onSubmit = (event: FormEvent) => {
     event.preventDefault();
