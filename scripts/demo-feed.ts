@@ -175,6 +175,12 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
     }
   }
 
+  function noteError(message: string): void {
+    stats.lastError = message;
+    stats.lastErrorAt = new Date().toISOString();
+    statsDirty = true;
+  }
+
   function tally(batch: SimulatedTransaction[], answer: IngestAnswer | null): void {
     stats.sent += batch.length;
     statsDirty = true;
@@ -194,8 +200,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
     }
     if (rejected > 0) {
       stats.rejected += rejected;
-      stats.lastError = `${rejected} of ${batch.length} rejected (${[...paths].slice(0, 5).join(', ')})`;
-      stats.lastErrorAt = new Date().toISOString();
+      noteError(`${rejected} of ${batch.length} rejected (${[...paths].slice(0, 5).join(', ')})`);
       log('transactions rejected', { rejected, batch: batch.length, fields: [...paths].slice(0, 5).join(',') });
     }
   }
@@ -230,9 +235,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
         if (!RETRYABLE(res.status)) {
           stats.sent += batch.length;
           stats.rejected += batch.length;
-          stats.lastError = failure;
-          stats.lastErrorAt = new Date().toISOString();
-          statsDirty = true;
+          noteError(failure);
           log('batch refused', { status: res.status, batch: batch.length, error: failure });
           return;
         }
@@ -244,9 +247,7 @@ export function startDemoFeed(o: DemoFeedOptions): DemoFeed {
         failure = scrub(e.cause?.code ?? e.name ?? 'request failed');
       }
       stats.retries++;
-      stats.lastError = failure;
-      stats.lastErrorAt = new Date().toISOString();
-      statsDirty = true;
+      noteError(failure);
       log('will retry the same batch', { error: failure, attempt: attempt + 1, waitMs: Math.round(wait), batch: batch.length });
       await writeStats();
       await sleep(wait);

@@ -1,7 +1,8 @@
 import { QueryTypes } from 'sequelize';
 import type { Database } from '../db/database';
 import type { PrecisionSource, ThresholdCurve, ThresholdPoint } from '@shared/api/supervision';
-import { compileModel, parseModel, type Row } from '@shared/model/index';
+import type { Row } from '@shared/model/index';
+import { loadActiveModels } from '../model-registry/model-repository';
 
 /** Thresholds the curve is computed at: 0.01, 0.02, ..., 0.99. */
 export const GRID = Array.from({ length: 99 }, (_, i) => (i + 1) / 100);
@@ -77,7 +78,7 @@ function isHistogram(v: unknown): v is ClassHistogram {
 const toBuckets = (rows: { b: number; n: number }[]) => new Map(rows.map((r) => [Number(r.b), Number(r.n)]));
 
 /** The bucket of a probability, as BUCKET_SQL computes it in the database. */
-export const bucketOf = (p: number) => Math.min(99, Math.floor(p * 100 + 1e-9));
+const bucketOf = (p: number) => Math.min(99, Math.floor(p * 100 + 1e-9));
 
 function curvePoints(alerts: number[], cases: number[], spanDays: number, pr: { precision: number | null; recall: number | null }[]): ThresholdPoint[] {
   return GRID.map((threshold, i) => ({
@@ -93,6 +94,13 @@ interface ChampionRow {
   id: number;
   label: string;
   metrics: string | null;
+}
+
+async function readChampion(db: Database): Promise<ChampionRow | undefined> {
+  const [champion] = await db.sequelize.query<ChampionRow>("SELECT id, label, metrics FROM model_versions WHERE role = 'champion' ORDER BY id DESC LIMIT 1", {
+    type: QueryTypes.SELECT,
+  });
+  return champion;
 }
 
 /**
@@ -151,10 +159,7 @@ async function championPrecision(db: Database, champion: ChampionRow | undefined
 export async function buildThresholdCurve(db: Database, days: number, currentThreshold: number): Promise<ThresholdCurve> {
   const now = new Date();
   const windowStart = new Date(now.getTime() - days * 86_400_000);
-  const [champion] = await db.sequelize.query<ChampionRow>(
-    "SELECT id, label, metrics FROM model_versions WHERE role = 'champion' ORDER BY id DESC LIMIT 1",
-    { type: QueryTypes.SELECT },
-  );
+  const champion = await readChampion(db);
 
   // Traffic: the champion's own scores when it has enough of them, else every model's.
   const [{ n: championScored, first: championFirst }] = champion
@@ -215,15 +220,12 @@ export async function buildThresholdCurve(db: Database, days: number, currentThr
  * and UTC day, its highest score deciding.
  */
 export async function buildHistoryThresholdCurve(db: Database, window: { from: Date; to: Date }, currentThreshold: number): Promise<ThresholdCurve> {
-  const [champion] = await db.sequelize.query<ChampionRow & { model_json: string }>(
-    "SELECT id, label, metrics, model_json FROM model_versions WHERE role = 'champion' ORDER BY id DESC LIMIT 1",
-    { type: QueryTypes.SELECT },
-  );
+  const [champion, { champion: loaded }] = await Promise.all([readChampion(db), loadActiveModels(db)]);
   const alertBuckets = new Map<number, number>();
   const cardDays = new Map<string, number>();
   let scored = 0;
-  if (champion) {
-    const compiled = compileModel(parseModel(JSON.parse(champion.model_json)));
+  if (loaded) {
+    const { compiled } = loaded;
     const rows = await db.sequelize.query<{ card_id: number; occurred_at: Date; features: string }>(
       `SELECT t.card_id, t.occurred_at, f.features FROM transactions t JOIN transaction_features f ON f.transaction_id = t.id
        WHERE t.occurred_at >= ? AND t.occurred_at < ?`,
