@@ -105,6 +105,27 @@ describe('ingest API', () => {
     expect(card.pan_hash).toMatch(/^[0-9a-f]{64}$/);
   });
 
+  it('queues each transaction of concurrent single-transaction requests in exactly one scoring job', async () => {
+    const items = Array.from({ length: 40 }, (_, i) => txn({ amount: '12.00' }, 5000 + i));
+    const responses = await Promise.all(items.map((t) => post(t)));
+    for (const r of responses) expect(r.status).toBe(202);
+    const ids = responses.map((r) => r.body.results[0].transactionId as number);
+    for (const t of items) await scored(t.id);
+    const connection = createRedis(ts.server.config, { forBullmq: true, name: 'test-queue-reader' });
+    const queue = new Queue(QUEUES.scoring, { connection, prefix: ts.server.config.REDIS_PREFIX });
+    try {
+      const jobs = (await queue.getJobs(['completed', 'waiting', 'active', 'delayed', 'failed', 'prioritized']))
+        .map((j) => (j.data as { transactionIds: number[] }).transactionIds)
+        .filter((jobIds) => jobIds.some((id) => ids.includes(id)));
+      // Each id in one job only, however the requests were grouped and gathered (the gathering itself:
+      // tests/integration/scoring-queue.test.ts).
+      expect(jobs.flat().filter((id) => ids.includes(id)).sort((a, b) => a - b)).toEqual([...ids].sort((a, b) => a - b));
+    } finally {
+      await queue.close();
+      connection.disconnect();
+    }
+  });
+
   it('refuses what it must: malformed JSON 400, oversize 413, unknown key 401, wrong scope 403, a session 401', async () => {
     const malformed = await request(ts.server.http).post('/api/v1/transactions').set('Authorization', `Bearer ${key}`).set('Content-Type', 'application/json').send('{"id":');
     expect(malformed.status).toBe(400);
