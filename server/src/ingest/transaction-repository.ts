@@ -80,22 +80,25 @@ export async function storeTransactions(
     }
     // Sorted, so concurrent batches lock card rows in the same order and cannot deadlock on them.
     const cardRows = [...cards.values()].sort((a, b) => (a.panHash < b.panHash ? -1 : 1));
-    // Insert, then read back; whatever the read does not find is inserted again. Under concurrency
-    // InnoDB can count a row as a duplicate and skip it (ON DUPLICATE KEY / IGNORE) although no row
-    // with that key ends up committed (the conflicting insert was rolled back), so "not found after
-    // the insert" happens and must not turn into a lost card or a transaction answered "duplicate".
-    // The reads are locking reads: they see the newest committed rows, not this transaction's snapshot.
+    // Insert, then read back what the insert did not return; whatever the read does not find is
+    // inserted again. Under concurrency InnoDB can count a row as a duplicate and skip it (IGNORE)
+    // although no row with that key ends up committed (the conflicting insert was rolled back), so
+    // "not found after the insert" happens and must not turn into a lost card or a transaction
+    // answered "duplicate". The reads are locking reads: they see the newest committed rows, not this
+    // transaction's snapshot. RETURNING names the cards this statement made, so a batch of new cards
+    // (the usual case: known ones are cached) needs no read at all.
     for (let pass = 0, todo = cardRows; todo.length > 0; pass += 1, todo = todo.filter((c) => !cardId.has(c.panHash))) {
       if (pass === MAX_PASSES) throw new Error(`storeTransactions: ${todo.length} card rows still missing after ${MAX_PASSES} inserts`);
       const values = bindRows(todo.map((c) => [c.panHash, c.bin, c.last4, c.cardholderId, 'active', receivedAt, receivedAt]));
-      await rawQuery(
+      const made = await rawQuery<{ id: number; pan_hash: string }[]>(
         t,
-        `INSERT INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${values.sql} ON DUPLICATE KEY UPDATE id = id`,
+        `INSERT IGNORE INTO cards (pan_hash, bin, last4, cardholder_ref, status, created_at, updated_at) VALUES ${values.sql} RETURNING id, pan_hash`,
         values.values,
       );
-      const ids = await rawQuery<{ id: number; pan_hash: string }[]>(t, 'SELECT id, pan_hash FROM cards WHERE pan_hash IN (?) LOCK IN SHARE MODE', [
-        todo.map((c) => c.panHash),
-      ]);
+      for (const r of made) cardId.set(r.pan_hash, Number(r.id));
+      const unnamed = todo.filter((c) => !cardId.has(c.panHash)).map((c) => c.panHash);
+      if (unnamed.length === 0) continue;
+      const ids = await rawQuery<{ id: number; pan_hash: string }[]>(t, 'SELECT id, pan_hash FROM cards WHERE pan_hash IN (?) LOCK IN SHARE MODE', [unnamed]);
       for (const r of ids) cardId.set(r.pan_hash, Number(r.id));
     }
     const cols =
