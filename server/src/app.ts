@@ -13,6 +13,7 @@ import { createRedis } from './lib/redis';
 import { logger, scrubDigits } from './lib/logger';
 import { maskCardNumbersInBody } from './lib/mask-card-numbers';
 import { logUpstreamRefusals } from './lib/upstream-log';
+import { fixedHeaders } from './lib/fixed-headers';
 import { errorHandler, notFoundHandler } from './lib/error-handler';
 import { mountRoutes, type RouteSpec } from './access/route-table';
 import { createSession } from './auth/session';
@@ -80,22 +81,25 @@ export function createEdgecaseServer(overrides: Partial<NodeJS.ProcessEnv> = {})
   // (Static files are served with their own validators.)
   app.set('etag', false);
   app.set('trust proxy', config.TRUST_PROXY);
+  // Helmet's headers are the same on every answer: computed once at start-up (see fixedHeaders).
   app.use(
-    helmet({
-      contentSecurityPolicy: {
-        directives: {
-          'default-src': ["'self'"],
-          'connect-src': ["'self'"],
-          'img-src': ["'self'", 'data:', 'blob:'],
-          'font-src': ["'self'", 'data:'],
-          'style-src': ["'self'", "'unsafe-inline'"],
-          'object-src': ["'none'"],
-          'frame-ancestors': ["'none'"],
-          'upgrade-insecure-requests': config.COOKIE_SECURE ? [] : null,
+    fixedHeaders(
+      helmet({
+        contentSecurityPolicy: {
+          directives: {
+            'default-src': ["'self'"],
+            'connect-src': ["'self'"],
+            'img-src': ["'self'", 'data:', 'blob:'],
+            'font-src': ["'self'", 'data:'],
+            'style-src': ["'self'", "'unsafe-inline'"],
+            'object-src': ["'none'"],
+            'frame-ancestors': ["'none'"],
+            'upgrade-insecure-requests': config.COOKIE_SECURE ? [] : null,
+          },
         },
-      },
-      crossOriginEmbedderPolicy: false,
-    }),
+        crossOriginEmbedderPolicy: false,
+      }),
+    ),
   );
   const accessLog = pinoHttp({
     logger: logger(),
