@@ -27,7 +27,10 @@ export interface StoredAndQueued {
   batch: string;
   inserted: Map<string, number>;
   existing: Map<string, number>;
-  /** False when the rows were stored but the scoring job could not be added (Redis away): the caller answers 503. */
+  /**
+   * False when the rows were stored but the scoring job could not be added (Redis away): the caller
+   * answers 503. Always true for gathered ids, whose job is added after the answer (see `gather`).
+   */
   queued: boolean;
 }
 

@@ -16,7 +16,6 @@ export const MAX_JOB_IDS = 1000;
 const GATHER_MS = 15;
 
 /** Producer side of the scoring queue. Job payloads carry internal ids only. */
-
 export class ScoringQueue {
   readonly queue: Queue<ScoringJob>;
   private readonly backlog = new Map<string, ScoringJob>();
