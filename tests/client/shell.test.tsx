@@ -27,13 +27,22 @@ describe('keyboard shortcuts', () => {
     expect(location()).toBe('/audit');
   });
 
-  it('? opens a help overlay listing the shortcuts that exist for the role; Esc closes it', async () => {
+  it('? opens a help overlay listing the shortcuts that exist for the role; focus stays inside; Esc closes it and gives focus back', async () => {
     stubFetch(signedInRoutes('admin'));
     const { user } = renderApp('/admin');
     await screen.findByRole('heading', { level: 1, name: 'Admin' });
+    const opener = screen.getByRole('button', { name: /Shortcuts/ });
+    opener.focus();
 
     await user.keyboard('?');
     const dialog = await screen.findByRole('dialog', { name: 'Keyboard shortcuts' });
+    const close = within(dialog).getByRole('button', { name: /Close/ });
+    expect(close).toHaveFocus();
+    // Its one button is both ends of the loop: Tab and Shift+Tab stay on it.
+    await user.tab();
+    expect(close).toHaveFocus();
+    await user.tab({ shift: true });
+    expect(close).toHaveFocus();
     expect(within(dialog).getByText('Go to Admin')).toBeInTheDocument();
     expect(within(dialog).getByText('Go to Audit')).toBeInTheDocument();
     expect(within(dialog).queryByText('Go to Queue')).not.toBeInTheDocument();
@@ -43,6 +52,7 @@ describe('keyboard shortcuts', () => {
 
     await user.keyboard('{Escape}');
     await waitFor(() => expect(screen.queryByRole('dialog')).not.toBeInTheDocument());
+    expect(opener).toHaveFocus();
   });
 
   it('keys typed into a field are text, not shortcuts', async () => {

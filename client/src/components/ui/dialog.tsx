@@ -9,12 +9,15 @@ export function Dialog({
   onClose,
   children,
   initialFocus,
+  action,
 }: {
   title: string;
   onClose: () => void;
   children: ReactNode;
   /** The element to focus first; otherwise the first focusable one. */
   initialFocus?: React.RefObject<HTMLElement | null>;
+  /** Shown beside the title (a close button, say). */
+  action?: ReactNode;
 }) {
   const titleId = useId();
   const dialogRef = useRef<HTMLDivElement>(null);
@@ -59,9 +62,12 @@ export function Dialog({
         onClick={(event) => event.stopPropagation()}
         className="w-full max-w-md rounded border border-border bg-surface p-4 shadow-lg"
       >
-        <h2 id={titleId} className="text-base font-semibold text-text">
-          {title}
-        </h2>
+        <div className="flex items-center justify-between gap-2">
+          <h2 id={titleId} className="text-base font-semibold text-text">
+            {title}
+          </h2>
+          {action}
+        </div>
         <div className="mt-2">{children}</div>
       </div>
     </div>
