@@ -1,3 +1,4 @@
+import type { ReactNode } from 'react';
 import { Link } from 'react-router';
 import { FEATURES } from '@shared/features/definitions';
 import { MODEL_CARD_CAUTIONS, MODEL_ROLE_LABELS, type ModelVersionDetail } from '@shared/api/models';
@@ -59,6 +60,18 @@ function Metrics({ v }: { v: ModelVersionDetail }) {
  * anyone acting on its scores. Prints as a plain page (the browser's print
  * dialog can save it as PDF).
  */
+/** A titled part of the card, named by its heading for assistive technology. */
+function CardSection({ id, title, children }: { id: string; title: string; children: ReactNode }) {
+  return (
+    <section aria-labelledby={id}>
+      <h2 id={id} className="text-base font-semibold">
+        {title}
+      </h2>
+      {children}
+    </section>
+  );
+}
+
 export function ModelCard({ id }: { id: number }) {
   const { data: v, isPending, error } = useModelVersion(id);
   if (isPending) return <LoadingLine />;
@@ -87,10 +100,7 @@ export function ModelCard({ id }: { id: number }) {
         </p>
       </header>
 
-      <section aria-labelledby="purpose">
-        <h2 id="purpose" className="text-base font-semibold">
-          Purpose
-        </h2>
+      <CardSection id="purpose" title="Purpose">
         <p className="text-sm">
           Scores each card transaction as it arrives with a calibrated probability that it is fraud, so the riskiest become alerts for the fraud operations team to
           investigate. It ranks and explains; it does not decide. Each score comes with reason codes: the features that moved it most, in raw units.
@@ -99,12 +109,9 @@ export function ModelCard({ id }: { id: number }) {
           Method: {v.training.bestRound} boosted decision stumps (AdaBoost as coordinate descent on the exponential loss, shrinkage {v.training.shrinkage}),
           class-weighted start, Platt scaling fitted on the validation rows{v.calibration ? ` (a = ${num(v.calibration.a)}, b = ${num(v.calibration.b)})` : ''}.
         </p>
-      </section>
+      </CardSection>
 
-      <section aria-labelledby="data">
-        <h2 id="data" className="text-base font-semibold">
-          Data
-        </h2>
+      <CardSection id="data" title="Data">
         <ul className="list-disc pl-5 text-sm">
           <li>Transactions from {windowText(v.dataFrom, v.dataTo)}; the window ends a label delay before training ({String(v.params?.labelDelayDays ?? '–')} days).</li>
           <li>
@@ -119,12 +126,9 @@ export function ModelCard({ id }: { id: number }) {
           <li>Features: {v.features.map((f) => featureLabel(f.name)).join(', ')}. No card number is a feature.</li>
           <li>Training took {duration(v.trainingSeconds)}; {v.training.roundsRun} rounds ran, {v.training.bestRound} kept ({v.training.stoppedBy}).</li>
         </ul>
-      </section>
+      </CardSection>
 
-      <section aria-labelledby="metrics">
-        <h2 id="metrics" className="text-base font-semibold">
-          How it did on newer held-out rows
-        </h2>
+      <CardSection id="metrics" title="How it did on newer held-out rows">
         {e ? <Metrics v={v} /> : <p className="text-sm text-muted">No evaluation was stored with this version.</p>}
         {v.curves && (
           <div className="mt-2 grid gap-3 sm:grid-cols-2">
@@ -133,30 +137,24 @@ export function ModelCard({ id }: { id: number }) {
           </div>
         )}
         <p className="mt-2 text-sm">Strongest features (share of Σ|α|): {top.map((f) => `${featureLabel(f.feature)} ${pct(f.share, 0)}`).join(', ')}.</p>
-      </section>
+      </CardSection>
 
-      <section aria-labelledby="limits">
-        <h2 id="limits" className="text-base font-semibold">
-          Known limits
-        </h2>
+      <CardSection id="limits" title="Known limits">
         <ul className="list-disc pl-5 text-sm">
           <li>One threshold per feature per stump: interactions between features are not modelled, only added up.</li>
           <li>Categories seen fewer than five times in training share one "other" value; a new merchant category or country is read as "other".</li>
           <li>Velocity features depend on the card's recent history held by the scoring service; a card's first transactions have little of it.</li>
           <li>The test period is short ({count(e?.n)} rows, {count(e?.fraud)} fraud): the figures carry sampling error, more so for precision at the budget.</li>
         </ul>
-      </section>
+      </CardSection>
 
-      <section aria-labelledby="cautions">
-        <h2 id="cautions" className="text-base font-semibold">
-          Cautions
-        </h2>
+      <CardSection id="cautions" title="Cautions">
         <ul className="list-disc pl-5 text-sm">
           {MODEL_CARD_CAUTIONS.map((c) => (
             <li key={c}>{c}</li>
           ))}
         </ul>
-      </section>
+      </CardSection>
     </article>
   );
 }
