@@ -124,6 +124,20 @@ describe('protected routes', () => {
     expect(queryClient.getQueryData(['cases', 'open'])).toBeUndefined();
   });
 
+  it('/login, the address people type, is the sign-in page', async () => {
+    stubFetch(signedOutRoutes);
+    const { location } = renderApp('/login');
+    expect(await screen.findByRole('button', { name: 'Sign in' })).toBeInTheDocument();
+    expect(location()).toBe('/sign-in');
+  });
+
+  it('/login takes a signed-in person to their home, not to "Page not found"', async () => {
+    stubFetch(signedInRoutes('supervisor'));
+    const { location } = renderApp('/login');
+    expect(await screen.findByRole('heading', { level: 1, name: 'Board' })).toBeInTheDocument();
+    expect(location()).toBe('/board');
+  });
+
   it('an already signed-in person opening /sign-in goes to their home', async () => {
     stubFetch(signedInRoutes('admin'));
     const { location } = renderApp('/sign-in');

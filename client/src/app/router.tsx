@@ -1,6 +1,6 @@
 import type { QueryClient } from '@tanstack/react-query';
 import type { ComponentType } from 'react';
-import { createBrowserRouter, Outlet, type LoaderFunction, type RouteObject } from 'react-router';
+import { createBrowserRouter, Navigate, Outlet, type LoaderFunction, type RouteObject } from 'react-router';
 import type { Capability } from '@shared/auth/roles';
 import { LoadingLine } from '@/components/ui/spinner';
 import { appLayoutLoader, AppLayout } from './routes/app-layout';
@@ -34,6 +34,8 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
       hydrateFallbackElement: <LoadingLine className="p-6" />,
       children: [
         { path: '/sign-in', loader: signInLoader(queryClient), element: <SignInRoute />, errorElement: <RouteError /> },
+        // The address people type for a sign-in page: it goes to ours, not to "Page not found" after signing in.
+        { path: '/login', element: <Navigate to="/sign-in" replace /> },
         {
           path: '/accept-invite',
           errorElement: <RouteError />,
