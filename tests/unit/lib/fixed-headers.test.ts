@@ -27,8 +27,11 @@ describe('fixedHeaders', () => {
     expect(frozen.headers['x-powered-by']).toBeUndefined();
   });
 
-  it('refuses, at start-up, a middleware that does not finish synchronously or fails', () => {
+  it('refuses, at start-up, a middleware that does not finish synchronously, fails, or sets different headers each time', () => {
     expect(() => fixedHeaders((_req, _res, next) => void setTimeout(next, 0))).toThrow(/synchronously/);
     expect(() => fixedHeaders((_req, _res, next) => next(new Error('bad option')))).toThrow(/bad option/);
+    // A value made afresh per answer (a CSP nonce) must not be frozen.
+    const nonce = helmet({ contentSecurityPolicy: { directives: { 'script-src': ["'self'", () => `'nonce-${Math.random().toString(36).slice(2)}'`] } } });
+    expect(() => fixedHeaders(nonce)).toThrow(/different headers/);
   });
 });
